@@ -1,0 +1,67 @@
+"""Year tables and month grids of any calendar.
+
+Works for every calendar whose first field is a year and second a month (or
+week): the days of the year are named by one vectorized ``from_jdn`` call
+and grouped by their second field, so no calendar needs code of its own.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .daylib import WEEKDAY_NAMES, weekday
+from .errors import ParameterError
+
+
+def _year_days(cal, year):
+    if len(cal.fields) < 2:
+        raise ParameterError(f"calendar {cal.label} has no months (fields: {', '.join(cal.fields)})")
+    start = int(np.asarray(cal.year_start_jdn(year)))
+    end = int(np.asarray(cal.year_start_jdn(year + 1)))
+    if end <= start:
+        raise ParameterError(f"calendar {cal.label}: year {year + 1} does not start after year {year}")
+    jdn = np.arange(start, end)
+    fields = cal.from_jdn(jdn)
+    return jdn, fields
+
+
+def year_table(cal, year: int, host) -> list[dict]:
+    """Return one row per month (second field) of ``year``: number, name, length, first day."""
+    jdn, fields = _year_days(cal, year)
+    second = np.asarray(fields[cal.fields[1]])
+    western = host.calendars.get("western")
+    rows = []
+    starts = np.flatnonzero(np.r_[True, second[1:] != second[:-1]])
+    ends = np.r_[starts[1:], len(jdn)]
+    for s, e in zip(starts, ends):
+        first = int(jdn[s])
+        wf = western.from_jdn(first)
+        rows.append({
+            "month": int(second[s]),
+            "name": cal.month_name(int(second[s]), year),
+            "days": int(e - s),
+            "first_jd": first - 0.5,
+            "first_western": western.format(*(int(np.asarray(wf[f])) for f in western.fields)),
+            "first_weekday": WEEKDAY_NAMES[int(weekday(first))],
+        })
+    return rows
+
+
+def month_grid(cal, year: int, month: int, host) -> str:
+    """Return a text grid (Sunday-first weeks) of one month, with the western date of its first day."""
+    jdn, fields = _year_days(cal, year)
+    second = np.asarray(fields[cal.fields[1]])
+    sel = jdn[second == month]
+    if sel.size == 0:
+        raise ParameterError(f"{cal.label} {year} has no month {month}")
+    days = np.asarray(fields[cal.fields[-1]])[second == month]
+    western = host.calendars.get("western")
+    wf = western.from_jdn(int(sel[0]))
+    title = (f"{cal.month_name(month, year)} ({month}) {year}, {cal.label}; day 1 = "
+             f"{western.format(*(int(np.asarray(wf[f])) for f in western.fields))} western, JD {sel[0] - 0.5}")
+    lines = [title, " ".join(w[:2] for w in WEEKDAY_NAMES)]
+    pad = int(weekday(int(sel[0])))
+    cells = ["  "] * pad + [f"{int(d):2d}" for d in days]
+    for i in range(0, len(cells), 7):
+        lines.append(" ".join(cells[i:i + 7]))
+    return "\n".join(lines)
