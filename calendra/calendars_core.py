@@ -46,6 +46,23 @@ class _JulianGregorianBase(SolarCalendar):
         """Return the day of the year, 1 = January 1."""
         return jg.day_of_year(year, month, day, self.is_leap)
 
+    #: Fused conversion + validation kernel (set by the proleptic calendars).
+    _checked = None
+
+    def to_jdn(self, *fields, **named):
+        if self._checked is None:
+            return super().to_jdn(*fields, **named)
+        values = self._gather(fields, named)
+        jdn, ok = type(self)._checked(*values)
+        if not np.all(ok):
+            self._raise_invalid(values, ~ok)
+        return jdn
+
+    def is_valid(self, year, month, day):
+        if self._checked is None:
+            return super().is_valid(year, month, day)
+        return type(self)._checked(year, month, day)[1]
+
 
 class JulianCalendar(_JulianGregorianBase):
     """The proleptic Julian calendar: a leap year every fourth year, with no exceptions."""
@@ -55,6 +72,7 @@ class JulianCalendar(_JulianGregorianBase):
     description = ("Proleptic Julian calendar, leap year every 4 years; before AD 8 a convention, "
                    "not Roman practice")
     epoch_jdn = 1721424
+    _checked = staticmethod(jg.julian_to_jdn_checked)
 
     def is_leap(self, year):
         return jg.julian_is_leap(year)
@@ -77,6 +95,7 @@ class GregorianCalendar(_JulianGregorianBase):
     aliases = ("greg", "new-style", "ns")
     description = "Proleptic Gregorian calendar, extended before 1582 by the same rules"
     epoch_jdn = 1721426
+    _checked = staticmethod(jg.gregorian_to_jdn_checked)
 
     def is_leap(self, year):
         return jg.gregorian_is_leap(year)

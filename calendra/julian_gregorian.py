@@ -35,62 +35,126 @@ _MONTH_DAYS = np.array([0, 31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31], dtyp
 _CUMULATIVE = np.array([0, 0, 31, 59, 90, 120, 151, 181, 212, 243, 273, 304, 334], dtype=np.int64)
 
 
-def _march_day_of_year(month, day):
+#: Elements per block: the temporaries of one block stay in the processor cache.
+_BLOCK = 1 << 15
+#: Day numbers and years within this bound are computed in int32 (exact, faster).
+_INT32_SAFE = 400_000_000
+
+
+def _blocked(func, arrays):
+    """Apply ``func`` to broadcast int arrays block by block, in int32 where exact; return int64 arrays."""
+    arrays = np.broadcast_arrays(*arrays)
+    shape = arrays[0].shape
+    flat = [a.reshape(-1) for a in arrays]
+    n = flat[0].size
+    small = all((a.size == 0) or (int(a.min()) > -_INT32_SAFE and int(a.max()) < _INT32_SAFE) for a in flat)
+    dtype = np.int32 if small else np.int64
+    flat = [a.astype(dtype, copy=False) for a in flat]
+    outs = None
+    for start in range(0, max(n, 1), _BLOCK):
+        block = func(*(a[start:start + _BLOCK] for a in flat))
+        if outs is None:
+            outs = [np.empty(n, dtype=bool if b.dtype == bool else np.int64) for b in block]
+        for o, b in zip(outs, block):
+            o[start:start + _BLOCK] = b
+    result = tuple(o.reshape(shape) for o in outs)
+    if shape == ():
+        result = tuple(np.int64(r[()]) for r in result)
+    return result
+
+
+def _march_day_of_year(m, d):
     # Days since March 1 of the counting year (March = 0 ... February = 11).
-    mp = np.where(month > 2, month - 3, month + 9)
-    return (153 * mp + 2) // 5 + day - 1
+    mp = m + 9 - 12 * (m > 2)
+    return (153 * mp + 2) // 5 + d - 1
 
 
-def _civil_from_march(doy, year_of_era, era_years):
+def _civil_from_march(doy, yoe_plus_era):
     mp = (5 * doy + 2) // 153
     day = doy - (153 * mp + 2) // 5 + 1
-    month = np.where(mp < 10, mp + 3, mp - 9)
-    year = year_of_era + era_years + (month <= 2)
-    return year, month, day
+    late = mp >= 10                         # January or February of the next civil year
+    month = mp + 3 - 12 * late
+    return yoe_plus_era + late, month, day
 
 
-def gregorian_to_jdn(year, month, day):
-    """Return the day number of a proleptic Gregorian date (no validation)."""
-    y = as_int_array(year)
-    m = as_int_array(month)
-    d = as_int_array(day)
+def _greg_to(y, m, d):
     y = y - (m <= 2)
     era = y // 400
     yoe = y - era * 400
     doe = yoe * 365 + yoe // 4 - yoe // 100 + _march_day_of_year(m, d)
-    return era * 146097 + doe + _GREGORIAN_MARCH_EPOCH
+    return (era * 146097 + doe + _GREGORIAN_MARCH_EPOCH,)
 
 
-def gregorian_from_jdn(jdn):
-    """Return (year, month, day) int64 arrays of the proleptic Gregorian date of day ``jdn``."""
-    z = as_int_array(jdn) - _GREGORIAN_MARCH_EPOCH
+def _greg_from(jdn):
+    z = jdn - _GREGORIAN_MARCH_EPOCH
     era = z // 146097
     doe = z - era * 146097
     yoe = (doe - doe // 1460 + doe // 36524 - doe // 146096) // 365
     doy = doe - (365 * yoe + yoe // 4 - yoe // 100)
-    return _civil_from_march(doy, yoe, era * 400)
+    return _civil_from_march(doy, yoe + era * 400)
 
 
-def julian_to_jdn(year, month, day):
-    """Return the day number of a proleptic Julian date (no validation)."""
-    y = as_int_array(year)
-    m = as_int_array(month)
-    d = as_int_array(day)
+def _jul_to(y, m, d):
     y = y - (m <= 2)
-    era = y // 4
-    yoe = y - era * 4
-    doe = yoe * 365 + _march_day_of_year(m, d)
-    return era * 1461 + doe + _JULIAN_MARCH_EPOCH
+    # y >> 2 and y & 3 are floor division and modulo by 4, also for negative years (two's complement).
+    return ((y >> 2) * 1461 + (y & 3) * 365 + _march_day_of_year(m, d) + _JULIAN_MARCH_EPOCH,)
 
 
-def julian_from_jdn(jdn):
-    """Return (year, month, day) int64 arrays of the proleptic Julian date of day ``jdn``."""
-    z = as_int_array(jdn) - _JULIAN_MARCH_EPOCH
+def _jul_from(jdn):
+    z = jdn - _JULIAN_MARCH_EPOCH
     era = z // 1461
     doe = z - era * 1461
     yoe = (doe - doe // 1460) // 365
     doy = doe - 365 * yoe
-    return _civil_from_march(doy, yoe, era * 4)
+    return _civil_from_march(doy, yoe + era * 4)
+
+
+def _month_ok(y, m, d, leap):
+    # Month lengths without a table: 30 + ((m ^ (m >> 3)) & 1) gives 31/30 for every month but February.
+    length = 30 + ((m ^ (m >> 3)) & 1) - (m == 2) * (2 - leap)
+    return (m >= 1) & (m <= 12) & (d >= 1) & (d <= length)
+
+
+def _greg_to_checked(y, m, d):
+    # y % 100 != 0 is y % 25 != 0 among multiples of 4; y % 400 == 0 is then y % 16 == 0.
+    leap = ((y & 3) == 0) & (((y % 25) != 0) | ((y & 15) == 0))
+    return _greg_to(y, m, d) + (_month_ok(y, m, d, leap),)
+
+
+def _jul_to_checked(y, m, d):
+    return _jul_to(y, m, d) + (_month_ok(y, m, d, (y & 3) == 0),)
+
+
+def gregorian_to_jdn_checked(year, month, day):
+    """Return (day numbers, validity mask) of proleptic Gregorian dates in one pass."""
+    jdn, ok = _blocked(_greg_to_checked, (as_int_array(year), as_int_array(month), as_int_array(day)))
+    return jdn, ok.astype(bool)
+
+
+def julian_to_jdn_checked(year, month, day):
+    """Return (day numbers, validity mask) of proleptic Julian dates in one pass."""
+    jdn, ok = _blocked(_jul_to_checked, (as_int_array(year), as_int_array(month), as_int_array(day)))
+    return jdn, ok.astype(bool)
+
+
+def gregorian_to_jdn(year, month, day):
+    """Return the day number of a proleptic Gregorian date (no validation)."""
+    return _blocked(_greg_to, (as_int_array(year), as_int_array(month), as_int_array(day)))[0]
+
+
+def gregorian_from_jdn(jdn):
+    """Return (year, month, day) int64 arrays of the proleptic Gregorian date of day ``jdn``."""
+    return _blocked(_greg_from, (as_int_array(jdn),))
+
+
+def julian_to_jdn(year, month, day):
+    """Return the day number of a proleptic Julian date (no validation)."""
+    return _blocked(_jul_to, (as_int_array(year), as_int_array(month), as_int_array(day)))[0]
+
+
+def julian_from_jdn(jdn):
+    """Return (year, month, day) int64 arrays of the proleptic Julian date of day ``jdn``."""
+    return _blocked(_jul_from, (as_int_array(jdn),))
 
 
 def gregorian_is_leap(year):

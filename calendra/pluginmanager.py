@@ -26,7 +26,7 @@ from .registry import CalendarRegistry, Registry
 ENTRY_POINT_GROUP = "calendra"
 
 #: Modules of the core that implement hooks (registered directly, not through entry points).
-CORE_HOOK_MODULES = ("calendra.calendars_core", "calendra.core_detectors")
+CORE_HOOK_MODULES = ("calendra.calendars_core", "calendra.detectors_sky", "calendra.detectors_site")
 
 
 @dataclass
@@ -71,8 +71,8 @@ class Host:
                 if exc.name == modname:     # that part of the core is not written yet
                     continue
                 raise
-            self._register("core" if modname.endswith("calendars_core") else modname.rsplit(".", 1)[1],
-                           mod, "calendra core", __version__)
+            name = "core" if modname.endswith("calendars_core") else "core-" + modname.rsplit("_", 1)[1]
+            self._register(name, mod, "calendra core", __version__)
         if autoload:
             self._load_entry_points()
         for name, obj in plugins:
