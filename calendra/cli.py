@@ -125,7 +125,16 @@ def main():
 
 
 # --------------------------------------------------------------------- convert
-@main.command()
+DATE_ARGS = {"ignore_unknown_options": True}     # so that "-0584-05-28" is a date, not an option
+
+
+def _check_dates(dates):
+    for d in dates:
+        if d.startswith("--") or (d.startswith("-") and not d[1:2].isdigit()):
+            raise click.UsageError(f"no such option: {d}")
+
+
+@main.command(context_settings=DATE_ARGS)
 @click.argument("dates", nargs=-1)
 @click.option("--to", "targets", multiple=True, metavar="CAL",
               help="Calendar to show (repeatable; default: every installed calendar). CAL[opt=value] sets options.")
@@ -144,6 +153,7 @@ def convert(dates, targets, date_file, site, deltat, reform, fmt):
     """
     from .convert import convert_dates, render
 
+    _check_dates(dates)
     texts = list(dates)
     if date_file is not None:
         for line in date_file:
@@ -254,7 +264,7 @@ def plugins(fmt):
 
 
 # --------------------------------------------------------------------- deltat
-@main.command("deltat")
+@main.command("deltat", context_settings=DATE_ARGS)
 @click.argument("dates", nargs=-1)
 @click.option("--list", "list_models", is_flag=True, help="List the delta-T models.")
 @click.option("--models", default=None, metavar="M1,M2,...",
@@ -267,15 +277,16 @@ def deltat_command(dates, list_models, models, fmt):
     from .output import render_csv, render_json, render_table
     from .provenance import format_seconds
 
+    _check_dates(dates)
     if list_models or not dates:
-        rows = [{"model": name, "title": title} for name, title in dtmod.available_models()]
+        rows = [{"model": name, "title": title} for name, title in dtmod.available_models().items()]
         if fmt == "json":
             _emit(render_json({"models": rows}))
         else:
             _emit(render_table(rows, ["model", "title"]) if fmt == "table" else render_csv(rows, ["model", "title"]))
         return
     host = _host()
-    names = [m.strip() for m in models.split(",")] if models else [n for n, _ in dtmod.available_models()
+    names = [m.strip() for m in models.split(",")] if models else [n for n in dtmod.available_models()
                                                                     if ":" not in n]
     specs = [parse_date(t, host, allow_partial=True) for t in dates]
     res = resolve_dates(specs, host)

@@ -55,8 +55,8 @@ class EventTable:
         self.columns = cols
         for name in cols:
             self.meta.setdefault(name, Column(name))
-        self.meta["jd_tt"].unit = self.meta["jd_tt"].unit or "d (TT)"
-        self.meta["jd_ut"].unit = self.meta["jd_ut"].unit or "d (UT1)"
+        self.meta["jd_tt"].description = self.meta["jd_tt"].description or "Julian Day, TT"
+        self.meta["jd_ut"].description = self.meta["jd_ut"].description or "Julian Day, UT1 = TT - delta T"
 
     def __len__(self):
         return len(self.columns["jd_tt"])
