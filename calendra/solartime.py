@@ -31,7 +31,9 @@ def equation_of_time_days(jd_ut, deltat):
     t = ts.ut1_jd(jd_ut)
     ra, _, _ = eph["earth"].at(t).observe(eph["sun"]).apparent().radec(epoch="date")
     ut_hours = (jd_ut - 0.5) % 1.0 * 24.0
-    e_hours = (t.gast - ra.hours - ut_hours + 12.0) % 24.0 - 12.0
+    # Apparent solar time at Greenwich = hour angle of the Sun + 12 h; mean solar time = UT.
+    apparent_hours = t.gast - ra.hours + 12.0
+    e_hours = (apparent_hours - ut_hours + 12.0) % 24.0 - 12.0
     return e_hours / 24.0
 
 
