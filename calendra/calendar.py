@@ -157,7 +157,12 @@ class Calendar:
         return self.name
 
     def year_start_jdn(self, year) -> np.ndarray:
-        """Return the day number of the first day of ``year`` (first month, first day)."""
+        """Return the day number of the first day of ``year``.
+
+        The default is month 1, day 1 (1 for every field after the year);
+        calendars whose year does not begin with month 1 (the Hebrew year
+        begins in Tishri, month 7) override it.
+        """
         ones = np.ones_like(as_int_array(year))
         args = [year] + [ones] * (len(self.fields) - 1)
         return self._to_jdn(*(as_int_array(a) for a in args))
