@@ -59,6 +59,7 @@ def run_detector(detector, date_from, date_to, site, deltat, calendar, fmt, valu
     site_obj = parse_site(site) if site else None
     start = date_to_jd_tt(date_from, host, model)
     end = date_to_jd_tt(date_to, host, model)
+    start, end = clamp_to_ephemeris(start, end)
     cal = host.calendars.get(calendar) if calendar else None
     bar = None
 
@@ -77,6 +78,23 @@ def run_detector(detector, date_from, date_to, site, deltat, calendar, fmt, valu
         if bar is not None:
             bar.__exit__(None, None, None)
     click.echo(render_events(table, fmt, cal, host))
+
+
+def clamp_to_ephemeris(start: float, end: float) -> tuple[float, float]:
+    """Trim a search range (JD TT) to the ephemeris span, saying so on standard error.
+
+    A range wholly outside the span is an error (the ephemeris raises it with the span named).
+    """
+    from .ephemeris import SPAN_JD, check_span
+
+    lo, hi = SPAN_JD
+    if end < lo or start > hi:
+        check_span([start, end])
+    new = (max(start, lo + 1e-6), min(end, hi - 1e-6))
+    if new != (start, end):
+        click.echo(f"calendra: note: search range trimmed to the span of the ephemeris "
+                   f"(JD {new[0]:.1f} to {new[1]:.1f} TT)", err=True)
+    return new
 
 
 def render_events(table, fmt, calendar=None, host=None) -> str:
@@ -109,8 +127,13 @@ def render_events(table, fmt, calendar=None, host=None) -> str:
                             "provenance": table.provenance})
     if fmt == "csv":
         return render_csv(rows, cols)
-    headers = [c if not table.meta.get(c) or not table.meta[c].unit else f"{c} ({table.meta[c].unit})"
-               for c in cols]
+    def header(c):
+        unit = table.meta[c].unit if table.meta.get(c) else ""
+        if not unit or c.endswith("_" + unit) or c.endswith("_" + unit.replace(" ", "")):
+            return c
+        return f"{c} ({unit})"
+
+    headers = [header(c) for c in cols]
     return render_table(rows, cols, headers, provenance=table.provenance)
 
 

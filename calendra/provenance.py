@@ -106,12 +106,16 @@ def footer_lines(prov: dict) -> list[str]:
     lines = []
     eph = prov.get("ephemeris")
     if eph:
-        lines.append(f"ephemeris: {eph.get('name', '?')} ({eph.get('span_text', '')})")
+        span = " to ".join(eph.get("span_dates", []))
+        lines.append(f"ephemeris: JPL {eph.get('ephemeris', '?')} ({eph.get('source_package', '')} "
+                     f"{eph.get('source_version', '')}), covering {span}")
     dt = prov.get("delta_t")
     if dt:
         text = f"delta T: {dt['model']}"
         if "value_s" in dt:
             text += f" = {format_seconds(dt['value_s'])} +- {format_seconds(dt['sigma_s'])} (1 sigma)"
+        elif "range_s" in dt and dt["range_s"][1] - dt["range_s"][0] < 1.0:
+            text += f" = {format_seconds(dt['range_s'][0])} +- {format_seconds(dt['max_sigma_s'])} (1 sigma)"
         elif "range_s" in dt:
             text += (f" from {format_seconds(dt['range_s'][0])} to {format_seconds(dt['range_s'][1])}, "
                      f"uncertainty up to +-{format_seconds(dt['max_sigma_s'])}")
