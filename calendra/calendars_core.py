@@ -28,6 +28,8 @@ ASTRONOMICAL_YEARS = "astronomical (year 0 = 1 BC, -1 = 2 BC); long form BC/AD"
 class _JulianGregorianBase(SolarCalendar):
     month_names = MONTH_NAMES
     year_numbering = ASTRONOMICAL_YEARS
+    #: "1957 Oct 4.81" is read as a day with a fraction (Meeus' notation).
+    accepts_decimal_day = True
 
     def format(self, year, month, day, style: str = "iso") -> str:
         y, m, d = int(year), int(month), int(day)

@@ -8,7 +8,8 @@ Accepted forms (see also :func:`calendra.calendar.parse_ymd_text`):
 
 * ``-0584-05-28``, ``1957-10-04T19:26:24``: astronomical years (0 = 1 BC)
 * ``585 BC May 28``, ``28 May 585 BCE``, ``AD 1066 Oct 14``
-* ``1957 Oct 4.81``: a decimal day (the fraction is the time of day)
+* ``1957 Oct 4.81``: a decimal day (the fraction is the time of day), in the
+  calendars that declare ``accepts_decimal_day`` (julian, gregorian, western)
 * a calendar prefix: ``julian:333-01-27``, ``gregorian:1582-10-15``,
   ``western[reform=britain]:1752-09-02``, ``CAL:...`` for any installed
   calendar (the text after the colon is read by that calendar)
@@ -133,16 +134,15 @@ def parse_date(text: str, host=None, allow_partial: bool = False) -> DateSpec:
     mp = _PREFIX_RE.match(s)
     if mp:
         calendar, s = mp.group(1).lower(), mp.group(2).strip()
-    if fraction is None:
-        md = _DECIMAL_DAY_RE.search(s)
-        if md and not re.fullmatch(r"[+-]?\d+\.\d+", s):
-            fraction = float("0." + md.group(2))
-            s = s[: md.start()] + md.group(1) + s[md.end():]
-
     from .pluginmanager import get_host
 
     host = host or get_host()
     cal = host.calendars.get(calendar) if calendar else host.calendars.get("western")
+    if fraction is None and getattr(cal, "accepts_decimal_day", False):
+        md = _DECIMAL_DAY_RE.search(s)
+        if md and not re.fullmatch(r"[+-]?\d+\.\d+", s):
+            fraction = float("0." + md.group(2))
+            s = s[: md.start()] + md.group(1) + s[md.end():]
     partial = ""
     try:
         fields = cal.parse(s)

@@ -27,7 +27,10 @@ def calendra_calendars():
     """Return a list of :class:`calendra.calendar.Calendar` instances this plugin adds.
 
     Names and aliases must be unique across all plugins; a clash is reported
-    with both plugins' names and the later one is skipped.
+    with both plugins' names and the later one is skipped.  An item of the
+    list that is an exception instance (e.g. a user file that could not be
+    read) is reported as a problem of the plugin instead of being registered;
+    this holds for every hook that returns a list.
     """
 
 

@@ -122,7 +122,9 @@ class Host:
             added = info.added.setdefault(registry.kind, [])
             before = len(registry.clashes)
             for item in items:
-                if registry.add(item, name):
+                if isinstance(item, Exception):     # a part of the plugin that could not be made
+                    info.errors.append(str(item))
+                elif registry.add(item, name):
                     added.append(item.name)
             for _, message in registry.clashes[before:]:
                 info.errors.append(message)
