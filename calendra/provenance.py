@@ -114,7 +114,7 @@ def footer_lines(prov: dict) -> list[str]:
         text = f"delta T: {dt['model']}"
         if "value_s" in dt:
             text += f" = {format_seconds(dt['value_s'])} +- {format_seconds(dt['sigma_s'])} (1 sigma)"
-        elif "range_s" in dt and dt["range_s"][1] - dt["range_s"][0] < 1.0:
+        elif "range_s" in dt and dt["range_s"][1] - dt["range_s"][0] < max(1.0, 0.1 * dt["max_sigma_s"]):
             text += f" = {format_seconds(dt['range_s'][0])} +- {format_seconds(dt['max_sigma_s'])} (1 sigma)"
         elif "range_s" in dt:
             text += (f" from {format_seconds(dt['range_s'][0])} to {format_seconds(dt['range_s'][1])}, "
