@@ -74,12 +74,13 @@ def calendar_day(jd_ut, day_start, site=None, deltat=None, altitude_deg=STANDARD
     return day - (jd_ut < t_rise)
 
 
-def sun_crossing(day, site, deltat, rising: bool, altitude_deg=STANDARD_SUN_ALTITUDE_DEG, iterations=4):
+def sun_crossing(day, site, deltat, rising: bool, altitude_deg=STANDARD_SUN_ALTITUDE_DEG, iterations=None):
     """Return the UT1 Julian Day when the Sun's centre crosses ``altitude_deg`` on civil day ``day`` at the site.
 
-    Vectorized over ``day``: a guess from the mean local time, refined by
-    Newton steps on the apparent topocentric altitude (DE406, skyfield) with
-    the hour-angle rate as derivative.  Polar days or nights give NaN.
+    Vectorized over ``day``; computed by :func:`calendra.riseset.sun_crossing_on_days`
+    (a guess per day from the hour angle, then Newton steps on the apparent
+    topocentric altitude from DE406 through skyfield).  Polar days or nights
+    give NaN.
 
     Parameters
     ----------
@@ -90,35 +91,12 @@ def sun_crossing(day, site, deltat, rising: bool, altitude_deg=STANDARD_SUN_ALTI
     rising : bool
         True for the morning crossing, False for the evening.
     altitude_deg : float
-        Altitude of the Sun's centre, degrees (refraction included in the value).
+        Airless altitude of the Sun's centre, degrees (refraction and
+        semi-diameter included in the value).
+    iterations : None
+        Unused; convergence is decided per day by the rise/set solver.
     """
-    from skyfield.api import wgs84
+    from .riseset import sun_crossing_on_days
 
-    from .deltat import skyfield_timescale
-    from .ephemeris import load_ephemeris
-
-    eph = load_ephemeris()
-    ts = skyfield_timescale(deltat)
-    observer = eph["earth"] + wgs84.latlon(site.latitude_deg, site.longitude_deg, site.elevation_m)
-    day = np.asarray(day, dtype=np.int64)
-    # Local mean noon at the site in UT, then +-6 h as a first guess.
-    noon = day.astype(float) - site.longitude_deg / 360.0
-    t = noon + (-0.25 if rising else 0.25)
-    lat = np.radians(site.latitude_deg)
-    h0 = np.radians(altitude_deg)
-    ok = np.ones(day.shape, dtype=bool)
-    for _ in range(iterations):
-        tt = ts.ut1_jd(t)
-        app = observer.at(tt).observe(eph["sun"]).apparent()
-        alt, _, _ = app.altaz()
-        ha, dec, _ = app.hadec()
-        dec_r = dec.radians
-        # d(alt)/dt from the hour angle rate (~360.9856 deg/day).
-        dalt_dh = -np.cos(lat) * np.cos(dec_r) * np.sin(ha.radians) / np.maximum(np.cos(alt.radians), 1e-6)
-        rate = dalt_dh * np.radians(360.9856)
-        step = (h0 - alt.radians) / np.where(np.abs(rate) < 1e-6, np.nan, rate)
-        # Does the Sun reach that altitude today at all?
-        cos_h = (np.sin(h0) - np.sin(lat) * np.sin(dec_r)) / (np.cos(lat) * np.cos(dec_r))
-        ok &= np.abs(cos_h) <= 1.0
-        t = t + np.clip(np.nan_to_num(step), -0.2, 0.2)
-    return np.where(ok, t, np.nan)
+    return sun_crossing_on_days(np.asarray(day, dtype=np.int64), site, deltat, rising=rising,
+                                altitude_deg=altitude_deg)

@@ -1,0 +1,1 @@
+"""Package data of calendra (the gazetteer of historical sites)."""
