@@ -71,7 +71,6 @@ velocities, to 0.1 s.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -79,7 +78,6 @@ import numpy as np
 from .detector import Detector, Parameter
 from .errors import ParameterError, UnknownNameError
 
-SYNODIC_MONTH = 29.530588861     # days (Meeus eq. 49.1)
 #: Evenings examined after the local day of conjunction (offsets in days) and mornings before it.
 EVENING_OFFSETS = (-1, 0, 1, 2, 3, 4)
 MORNING_OFFSETS = (-4, -3, -2, -1, 0, 1)
@@ -88,20 +86,14 @@ BEST_TIME_FRACTION = 4.0 / 9.0
 
 # ---------------------------------------------------------------- conjunctions
 
-def _time_tt(ts, jd_tt):
-    from skyfield.nutationlib import iau2000b_radians
-
-    t = ts.tt_jd(np.asarray(jd_tt, dtype=float))
-    t._nutation_angles_radians = iau2000b_radians(t)
-    return t
-
 
 def _syzygies(jd_tt_start, jd_tt_end, phase=0.0, deltat=None):
     """Return the instants (TT) of new moons (phase 0) or full moons (phase 0.5) in a span.
 
-    Mean phase (Meeus eq. 49.1) for ``k = n + phase``, then Newton steps on
-    ``lambda_moon - lambda_sun - 360 phase`` (geocentric apparent ecliptic
-    longitudes of date, DE406), derivative from skyfield's rates.
+    A thin view of :func:`calendra.lunations.lunar_phases` (mean phases of
+    Meeus ch. 49 refined by vectorized Newton steps on the DE406 elongation).
+    ``deltat`` is accepted for symmetry with the callers; conjunctions are TT
+    events and do not depend on it.
 
     Returns
     -------
@@ -110,42 +102,13 @@ def _syzygies(jd_tt_start, jd_tt_end, phase=0.0, deltat=None):
     k : float array
         Lunation numbers of Meeus (k = 0: the new moon of 2000 January 6).
     """
-    from skyfield.framelib import ecliptic_frame
-
-    from .deltat import skyfield_timescale
-    from .ephemeris import check_span, load_ephemeris
-
-    eph = load_ephemeris()
-    ts = skyfield_timescale(deltat)
-    earth, moon, sun = eph["earth"], eph["moon"], eph["sun"]
-    k0 = math.floor((jd_tt_start - 2451550.09766) / SYNODIC_MONTH) - 1
-    k1 = math.ceil((jd_tt_end - 2451550.09766) / SYNODIC_MONTH) + 1
-    k = np.arange(k0, k1 + 1, dtype=float) + phase
-    tc = k / 1236.85
-    t = (2451550.09766 + SYNODIC_MONTH * k + 0.00015437 * tc ** 2 - 0.000000150 * tc ** 3
-         + 0.00000000073 * tc ** 4)
-    lo, hi = jd_tt_start - 40.0, jd_tt_end + 40.0
     from .ephemeris import SPAN_JD
+    from .lunations import lunar_phases
 
-    keep = (t > max(lo, SPAN_JD[0] + 1.0)) & (t < min(hi, SPAN_JD[1] - 1.0))
-    t, k = t[keep], k[keep]
-    active = np.ones(t.shape, dtype=bool)
-    for _ in range(10):
-        if not active.any():
-            break
-        ta = t[active]
-        check_span(ta)
-        tm = _time_tt(ts, ta)
-        e = earth.at(tm)
-        _, lon_m, _, _, rate_m, _ = e.observe(moon).apparent().frame_latlon_and_rates(ecliptic_frame)
-        _, lon_s, _, _, rate_s, _ = e.observe(sun).apparent().frame_latlon_and_rates(ecliptic_frame)
-        f = (lon_m.degrees - lon_s.degrees - 360.0 * phase + 180.0) % 360.0 - 180.0
-        step = -f / (rate_m.degrees.per_day - rate_s.degrees.per_day)
-        t[active] = ta + step
-        idx = np.flatnonzero(active)
-        active[idx[np.abs(step) < 1e-6]] = False
-    inside = (t >= jd_tt_start) & (t < jd_tt_end)
-    return t[inside], k[inside]
+    start = max(jd_tt_start, SPAN_JD[0] + 1.0)
+    end = min(jd_tt_end, SPAN_JD[1] - 1.0)
+    table = lunar_phases(start, end, "new" if phase == 0.0 else "full")
+    return table.jd_tt, table.k
 
 
 # ------------------------------------------------------------------ geometry
