@@ -208,6 +208,25 @@ def ecliptic_pole(jd_tt, precession: str = DEFAULT_PRECESSION):
     return pole.reshape((3,) + jd.shape)
 
 
+def equator_pole(jd_tt):
+    """Return the mean equator pole of date (Vondrák et al. 2011) as unit vectors in the GCRS.
+
+    Parameters
+    ----------
+    jd_tt : float or array_like
+        Julian Days, TT.
+
+    Returns
+    -------
+    ndarray, shape (3, N)
+        Unit vectors (dimensionless), GCRS axes, one column per instant.
+    """
+    t = (np.atleast_1d(np.asarray(jd_tt, dtype=np.float64)).reshape(-1) - J2000) / 36525.0
+    xe, ye = _series(t, _EQU_PERIODIC, _EQU_POLY)
+    pole = np.array([xe, ye, np.sqrt(np.maximum(1.0 - xe * xe - ye * ye, 0.0))])
+    return _frame_bias().T @ pole
+
+
 def _vondrak_pole(t):
     """Vondrák (2011) ecliptic pole in J2000 mean axes at Julian centuries ``t`` from J2000."""
     p, q = _series(t, _ECL_PERIODIC, _ECL_POLY)

@@ -1,0 +1,1 @@
+"""calendra plugin: solver."""
