@@ -1,0 +1,1 @@
+"""calendra plugin: sweeps of detectors over large grids on Dask."""
