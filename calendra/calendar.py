@@ -50,6 +50,9 @@ class Calendar:
         Day number of the first day of the era (year 1, month 1, day 1), if any.
     valid_jdn : tuple of int
         Inclusive range of day numbers the calendar is defined for.
+    invertible : bool
+        False for cyclic day names without a year (the Mayan Haab and
+        Tzolkin): they name every day, but a name alone does not give one day.
     """
 
     name: ClassVar[str] = ""
@@ -61,6 +64,7 @@ class Calendar:
     epoch_jdn: ClassVar[int | None] = None
     valid_jdn: tuple[int, int] = (-3_000_000_000, 3_000_000_000)
     options: ClassVar[Mapping[str, str]] = {}
+    invertible: ClassVar[bool] = True
 
     # ----------------------------------------------------------------- API
     def to_jdn(self, *fields, **named) -> np.ndarray:

@@ -23,7 +23,7 @@ def _bounds(cal):
 
 
 def _invertible(cal):
-    return getattr(cal, "invertible", True)
+    return cal.invertible
 
 
 @pytest.mark.parametrize("cal", CALENDARS, ids=lambda c: c.name)
