@@ -230,3 +230,17 @@ def test_gregorian_dates_after_1582(sirius):
     assert list(y) == [2000, 1000]
     assert text[0].startswith("+2000-08-01 (greg") and text[1].startswith("+1000-08-01 (jul")
     assert tuple(int(v) for v in gregorian_from_jdn(gregorian_to_jdn(2000, 8, 1))) == (2000, 8, 1)
+
+
+def test_a_span_without_the_phase_gives_an_empty_table():
+    # Invariant: a search window that holds no heliacal rising returns no rows, with the method's columns.
+    from calendra.pluginmanager import get_host
+
+    det = get_host().detectors.get("heliacal")
+    from calendra.sites import parse_site
+
+    site = parse_site("Babylon")
+    for method in ("arcus", "physical"):
+        table = det.search(1465680.5, 1465710.5, site=site, object="Sirius", method=method)   # -700 Sep
+        assert len(table) == 0
+        assert ("margin" if method == "arcus" else "k_band_first") in table.names

@@ -591,13 +591,14 @@ def find_phases(target: Target, site, jd_tt_start, jd_tt_end, phase="rising", me
     if progress:
         progress(0, total, f"{target.label}: coarse sweep")
     geo = night_geometry(target, sky, coarse, kind, extra_alt)
-    vis, _, _ = meth.evaluate(geo, target, **options)
+    vis, _, det0 = meth.evaluate(geo, target, **options)
     v = vis.astype(np.int8)
     ch = np.nonzero(np.diff(v) != 0)[0]
     if progress:
         progress(1, total, f"{target.label}: refining {len(ch)} changes")
     if len(ch) == 0:
         out = _empty()
+        out.update({key: np.zeros(0) for key in det0})    # the method's own columns, empty
     else:
         fine = (coarse[ch][:, None] + np.arange(step + 1)[None, :]).ravel()
         fine = np.unique(fine)
