@@ -25,20 +25,37 @@ def _year_days(cal, year):
     return jdn, fields
 
 
+def _month_keys(cal, fields):
+    """The fields between the year and the day (month, and e.g. a leap flag), as an (n, k) array."""
+    middle = cal.fields[1:-1] if len(cal.fields) > 2 else cal.fields[1:2]
+    return np.stack([np.asarray(fields[f]) for f in middle], axis=-1), middle
+
+
+def _month_label(cal, key, middle, year) -> str:
+    name = cal.month_name(int(key[0]), year)
+    extras = [f"{f} {int(v)}" for f, v in zip(middle[1:], key[1:]) if int(v)]
+    return name + (f" ({', '.join(extras)})" if extras else "")
+
+
 def year_table(cal, year: int, host) -> list[dict]:
-    """Return one row per month (second field) of ``year``: number, name, length, first day."""
+    """Return one row per month of ``year``: number, name, length, first day.
+
+    A month is a run of days sharing every field between the year and the
+    day, so a leap month (a leap flag beside the month number) is its own row.
+    """
     jdn, fields = _year_days(cal, year)
-    second = np.asarray(fields[cal.fields[1]])
+    keys, middle = _month_keys(cal, fields)
     western = host.calendars.get("western")
     rows = []
-    starts = np.flatnonzero(np.r_[True, second[1:] != second[:-1]])
+    change = np.any(keys[1:] != keys[:-1], axis=1)
+    starts = np.flatnonzero(np.r_[True, change])
     ends = np.r_[starts[1:], len(jdn)]
     for s, e in zip(starts, ends):
         first = int(jdn[s])
         wf = western.from_jdn(first)
         rows.append({
-            "month": int(second[s]),
-            "name": cal.month_name(int(second[s]), year),
+            "month": int(keys[s][0]),
+            "name": _month_label(cal, keys[s], middle, year),
             "days": int(e - s),
             "first_jd": first - 0.5,
             "first_western": western.format(*(int(np.asarray(wf[f])) for f in western.fields)),

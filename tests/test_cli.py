@@ -110,3 +110,13 @@ def test_help_does_not_import_skyfield():
             "assert 'skyfield' not in sys.modules, 'skyfield imported by --help'")
     proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
     assert proc.returncode == 0, proc.stderr
+
+
+def test_year_table_keeps_a_leap_month_apart():
+    # The Chinese year 2023 had a leap second month (from memory; the lunisolar tests check it
+    # against published tables): 13 months, the leap one its own row.
+    code, out, _ = run("calendar", "chinese", "2023", "--format", "json")
+    months = json.loads(out)["months"]
+    assert code == 0 and len(months) == 13
+    assert [m["month"] for m in months[:3]] == [1, 2, 2]
+    assert "leap" in months[2]["name"] and all(m["days"] in (29, 30) for m in months)

@@ -1,0 +1,1 @@
+"""Data files of the lunisolar plugin (attestation tables with their sources)."""
