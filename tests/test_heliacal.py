@@ -152,6 +152,71 @@ def test_physical_model_sky_darkens_through_twilight():
     assert b[-1] < 2000.0 < b[2]
 
 
+def test_physical_model_hecht_constants():
+    # Schaefer, PASP 102, 212 (1990), eq. 2, and the VISLIMIT program (Sky & Telescope, May 1998):
+    # I = c1 (1 + sqrt(c2 B))^2 with (c1, c2) = (10^-9.8, 10^-1.9) for night vision and
+    # (10^-8.35, 10^-5.9) for day vision, switch at B = 1500 nL (log B = 3.17 in the 1990 paper),
+    # m = -16.57 - 2.5 log10 I.
+    pm = H.PhysicalModel()
+    assert pm.C_NIGHT == pytest.approx((10 ** -9.8, 10 ** -1.9), rel=1e-12)
+    assert pm.C_DAY == pytest.approx((10 ** -8.35, 10 ** -5.9), rel=1e-12)
+    assert pm.B_SWITCH == 1500.0 and pm.THRESHOLD_ZP == -16.57
+    # with these constants the two branches meet at the switch (within 10%); the former day c2 of
+    # 1.26e-4 made the threshold jump by a factor of two there
+    ratio = pm.threshold_fc(1500.001) / pm.threshold_fc(1500.0)
+    assert 1.0 < ratio < 1.1
+
+
+def test_physical_model_night_sky_zero_point():
+    # B0 = 1e-13 erg s^-1 cm^-2 um^-1 arcsec^-2 and 1 nL = 1.11e-15 of those units (VISLIMIT, S&T
+    # May 1998) against Schaefer (1990) eq. 17, B(nL) = 34.08 exp(20.7233 - 0.92104 m_sky): with the
+    # V zero point 3.63e-9 erg s^-1 cm^-2 A^-1 [M: Bessell-type calibration] B0 is 21.40 mag/arcsec^2,
+    # i.e. 93.9 nL by eq. 17, against 90.1 nL by the program's factor: agreement within 5%.
+    pm = H.PhysicalModel()
+    m_sky = -2.5 * np.log10(pm.B0 / 3.63e-5)
+    assert m_sky == pytest.approx(21.40, abs=0.01)
+    assert pm.B0 / pm.NL == pytest.approx(34.08 * np.exp(20.7233 - 0.92104 * m_sky), rel=0.05)
+
+
+def test_physical_model_twilight_meets_daylight_near_sunset():
+    # The published twilight zero point (32.5, VISLIMIT 1998) makes the twilight law take over from
+    # the daylight law within a couple of degrees of the horizon (object at z = 85 deg, 40 deg from the Sun).
+    pm = H.PhysicalModel()
+    z, k, rs = np.radians(85.0), 0.25, 40.0
+    dm = pm.M_SUN - pm.M_MOON
+    ext = 1.0 - 10.0 ** (-0.4 * k * pm.airmass(z))
+    hs = np.linspace(-3.0, 3.0, 61)
+    bt = 10.0 ** (-0.4 * (dm + pm.TWILIGHT_ZP - hs - 85.0 / (360.0 * k))) * (100.0 / rs) * ext
+    total = np.array([float(pm.sky_brightness_nl(z, np.radians(90.0 - h), rs, k)) for h in hs])
+    twilight_branch = np.abs(total - bt / pm.NL) / total < 0.05      # night sky negligible here
+    assert twilight_branch[0] and not twilight_branch[-1]      # twilight law below, daylight law above
+    cross = hs[np.nonzero(~twilight_branch)[0][0]]
+    assert -2.0 <= cross <= 2.0
+
+
+def test_extinction_coefficient_program_formula():
+    # V-band extinction of the VISLIMIT program (S&T May 1998) for its default site: height 1000 m,
+    # RH 40%, 15 C, latitude 30, February.  Components written out from the listing:
+    h, rh, te, lat, ra = 1000.0, 0.40, 15.0, np.radians(30.0), np.radians((2 - 3) * 30.0)
+    kr = 0.1066 * np.exp(-h / 8200.0)
+    ka = 0.1 * np.exp(-h / 1500.0) * (1 - 0.32 / np.log(rh)) ** 1.33 * (1 + 0.33 * np.sin(ra))
+    ko = 0.031 * (3.0 + 0.4 * (lat * np.cos(ra) - np.cos(3 * lat))) / 3.0
+    kw = 0.031 * 0.94 * rh * np.exp(te / 15.0) * np.exp(-h / 8200.0)
+    assert H.extinction_coefficient(1000.0, 40.0, 15.0, 30.0, 2) == pytest.approx(kr + ka + ko + kw, rel=1e-12)
+    assert 0.20 < kr + ka + ko + kw < 0.24
+
+
+def test_physical_model_sirius_near_the_arcus_rule(sirius):
+    # Regression check of the corrected model (not a published anchor): for k = 0.25 at Memphis the
+    # physical date of Sirius' heliacal rising falls within 3 days of the Krauss arcus visionis date,
+    # first seen with the Sun 4-8 deg down.  Before the day-vision c2 was corrected it came ~7 days
+    # later, with the Sun ~11 deg down.
+    arcus = H.find_phases(sirius, MEMPHIS, J(-1000), J(-999), "rising", "arcus")
+    phys = H.find_phases(sirius, MEMPHIS, J(-1000), J(-999), "rising", "physical", k=0.25)
+    assert abs(int(phys["event_jdn"][0] - arcus["event_jdn"][0])) <= 3
+    assert -8.0 <= phys["best_sun_alt"][0] <= -4.0
+
+
 def test_physical_model_later_with_more_extinction(sirius):
     dates = [H.find_phases(sirius, MEMPHIS, J(-1000), J(-999), "rising", "physical", k=k)["event_jdn"][0]
              for k in (0.15, 0.25, 0.40)]

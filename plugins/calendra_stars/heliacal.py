@@ -317,7 +317,7 @@ class ArcusVisionis(VisibilityMethod):
 
 
 class PhysicalModel(VisibilityMethod):
-    """A physical visibility model after Schaefer (1990, 1993, 1998, 2000).
+    """A physical visibility model after Schaefer (1990, 1993, 1998).
 
     The object (V magnitude m) is seen at a moment if
 
@@ -326,40 +326,58 @@ class PhysicalModel(VisibilityMethod):
     with
 
     * X(z) = 1 / (cos z + 0.025 exp(-11 cos z)), the air mass at apparent
-      zenith distance z (Schaefer's form; [from memory]);
+      zenith distance z [S98: the air mass of the sky-brightness routine];
     * k the total V-band extinction coefficient (mag per air mass), given, or
       from :func:`extinction_coefficient` (site height, humidity, temperature,
-      latitude, season);
+      latitude, season) [S98];
     * B the sky brightness at the object (nanolamberts), the sum of
       - night sky: ``B_N = B0 (0.4 + 0.6 / sqrt(1 - 0.96 sin^2 z)) 10^(-0.4 k X)``,
-        B0 = 1.0e-13 erg s^-1 cm^-2 um^-1 arcsec^-2 in V (about 21.4 mag
-        arcsec^-2 at the zenith); the solar-cycle factor of Schaefer's program is
-        taken at its mean (1), the phase of the cycle being unknown in antiquity;
+        B0 = 1.0e-13 erg s^-1 cm^-2 um^-1 arcsec^-2 in V [S98] (about 21.4 mag
+        arcsec^-2 at the zenith); the solar-cycle factor
+        ``1 + 0.3 cos(2 pi (year - 1992) / 11)`` of [S98] is taken at its mean
+        (1), the phase of the cycle being unknown in antiquity;
       - twilight: ``B_T = 10^(-0.4 (M_S - M_M + 32.5 - h_S - z / (360 k)))
-        (100 / r_S) (1 - 10^(-0.4 k X))`` with h_S the Sun's altitude and r_S
-        the Sun-object distance in degrees, M_S = -26.74 and M_M = -11.05 the
-        V magnitudes of the Sun and of the full Moon used as reference;
-      - daylight (only when darker than twilight, as in Schaefer's program):
+        (100 / r_S) (1 - 10^(-0.4 k X))`` with h_S the Sun's altitude and z
+        the object's zenith distance, both in degrees, and r_S the Sun-object
+        distance in degrees; M_S = -26.74 and M_M = -11.05 the V magnitudes of
+        the Sun and of the Moon used as reference [S98];
+      - daylight (only when darker than twilight) [S98]:
         ``B_D = 10^(-0.4 (M_S - M_M + 43.27)) (1 - 10^(-0.4 k X))
         (f(r_S) C + 440000 (1 - C))``, f(r) = 6.2e7 r^-2 + 10^(6.15 - r/40)
-        + 229086 (1.06 + cos^2 r), C = 10^(-0.4 k X_S);
-      converted to nanolamberts by 1 nL = 1.11e-15 in those units;
+        + 10^5.36 (1.06 + cos^2 r), C = 10^(-0.4 k X_S), X_S = 40 for the Sun
+        below the horizon;
+      converted to nanolamberts by 1 nL = 1.11e-15 in those units [S98];
     * the threshold illuminance of Hecht (1947) in Schaefer's (1990) form:
-      ``I = c1 (1 + sqrt(c2 B))^2 F`` foot-candles with (c1, c2) =
-      (1.58e-10, 0.0126) for B < 1500 nL and (4.4e-9, 1.26e-4) above, F the
-      observer factor (1: Schaefer's typical observer), and
-      ``m_lim = -16.57 - 2.5 log10 I``.
+      ``I = c1 (1 + sqrt(c2 B))^2 F`` foot-candles with
+      (c1, c2) = (10^-9.8, 10^-1.9) for B <= 1500 nL (night vision) and
+      (10^-8.35, 10^-5.9) above (day vision) [S90 eq. 2, S98], F the
+      observer factor (1: Schaefer's typical observer; F = 1/S^2 is the
+      program's Snellen-ratio term ``+ 5 log10 S``), and
+      ``m_lim = -16.57 - 2.5 log10 I`` [S90, S98].
 
-    **Status of the coefficients.**  None of the coefficients above could be
-    verified in a primary text here: they are the values of Schaefer's
-    published BASIC program ("To the visual limits", Sky & Telescope, May
-    1998, 57-60) as recalled **from memory**, and the twilight zero point in
-    particular is a reconstruction (``M_S - M_M + 32.5``) chosen so that the
-    daylight and twilight terms meet near sunset as they must.  Checks in the
-    tests: a dark-sky zenith limiting magnitude of about 6.2-6.5 for k = 0.15
-    -0.25 (Schaefer's well-known result), and monotonic behaviour.  The Moon is
-    ignored (moonlight delays faint stars near full Moon), and the colour of the
-    object is not taken into account.
+    Sources: [S90] Schaefer, PASP 102, 212 (1990), eq. 2 and the conversion
+    m = -16.57 - 2.5 log10 I, as reproduced in an open implementation of that
+    paper's equations; [S98] Schaefer, "To the visual limits", Sky & Telescope,
+    May 1998 (the VISLIMIT program of the "Astronomical Computing" column), as
+    transcribed in open listings (Schaefer's companion CCD-limit program of the
+    same issue has the same extinction and sky subroutines).  Corrected against
+    these (values that were held from memory before): the day-vision c2 was
+    1.26e-4 and is 10^-5.9 = 1.26e-6 (the old value made the threshold jump by
+    a factor of two at 1500 nL and the twilight limit about 2.4 mag too bright
+    near the horizon); c1 = 1.58e-10 / 4.4e-9 are now the exact 10^-9.8 /
+    10^-8.35; the aerosol coefficient of :func:`extinction_coefficient` was
+    0.120 and is 0.1.  Confirmed as they were: the air mass, B0 and the
+    night-sky law, the twilight zero point 32.5 (not a reconstruction: it is
+    the published constant), the daylight law and 1.11e-15.
+
+    Differences from [S98], by design: the program's extinction of the object
+    uses one air mass per component (gas 1/(cos z + 0.0286 exp(-10.5 cos z)),
+    aerosol 1/(cos z + 0.0123 exp(-24.5 cos z)), ozone with a layer at 20 km);
+    here, with one total k given, the single air mass X(z) above is used
+    (at 3 deg altitude X = 15.1 against 14.5 for gas and 18.0 for aerosol).
+    The Moon is ignored (moonlight delays faint stars near full Moon), and the
+    colour of the object is not taken into account (the colour factor of
+    [S90] is not part of [S98]).
 
     Reported with the date: the dates for the smallest and largest k of
     ``k_range`` (default 0.15-0.40), i.e. how far the date moves across
@@ -374,10 +392,23 @@ class PhysicalModel(VisibilityMethod):
     #: Number of samples after the rising (before the setting).
     SAMPLES = 24
 
+    #: Dark-sky brightness at the zenith, V, erg s^-1 cm^-2 um^-1 arcsec^-2 [S98].
     B0 = 1.0e-13
+    #: V magnitudes of the Sun and of the reference Moon in the sky-brightness laws [S98].
     M_SUN = -26.74
     M_MOON = -11.05
+    #: One nanolambert in the units of B0 [S98].
     NL = 1.11e-15
+    #: Twilight and daylight zero points (magnitudes) [S98].
+    TWILIGHT_ZP = 32.5
+    DAYLIGHT_ZP = 43.27
+    #: Hecht's threshold constants (c1 foot-candles, c2 per nL), night and day vision,
+    #: and the brightness between them (nL) [S90 eq. 2 (switch at log B = 3.17), S98 (1500 nL)].
+    C_NIGHT = (10.0 ** -9.8, 10.0 ** -1.9)
+    C_DAY = (10.0 ** -8.35, 10.0 ** -5.9)
+    B_SWITCH = 1500.0
+    #: Zero point of m_lim = ZP - 2.5 log10 I (I in foot-candles) [S90, S98].
+    THRESHOLD_ZP = -16.57
 
     def evaluate(self, geom, target, k=0.25, observer_factor=1.0, **options):
         best, details = self.best_margin(geom, np.atleast_1d(np.asarray(k, dtype=float)), observer_factor)
@@ -435,22 +466,27 @@ class PhysicalModel(VisibilityMethod):
         hs = 90.0 - np.degrees(zs_rad)
         zdeg = np.degrees(z_rad)
         dm = self.M_SUN - self.M_MOON
-        bt = 10.0 ** (-0.4 * (dm + 32.5 - hs - zdeg / (360.0 * k))) * (100.0 / rs_deg) * ext
+        bt = 10.0 ** (-0.4 * (dm + self.TWILIGHT_ZP - hs - zdeg / (360.0 * k))) * (100.0 / rs_deg) * ext
         xs = self.airmass(np.minimum(zs_rad, np.radians(90.0)))
         c4 = 10.0 ** (-0.4 * k * xs)
         rr = np.radians(rs_deg)
-        fs = 6.2e7 * rs_deg ** -2 + 10.0 ** (6.15 - rs_deg / 40.0) + 229086.0 * (1.06 + np.cos(rr) ** 2)
-        bd = 10.0 ** (-0.4 * (dm + 43.27)) * ext * (fs * c4 + 440000.0 * (1.0 - c4))
+        fs = 6.2e7 * rs_deg ** -2 + 10.0 ** (6.15 - rs_deg / 40.0) + 10.0 ** 5.36 * (1.06 + np.cos(rr) ** 2)
+        bd = 10.0 ** (-0.4 * (dm + self.DAYLIGHT_ZP)) * ext * (fs * c4 + 440000.0 * (1.0 - c4))
         return (bn + np.minimum(bd, bt)) / self.NL
 
     def limiting_magnitude(self, z_rad, zs_rad, rs_deg, k, observer_factor=1.0):
         """Threshold magnitude (below the atmosphere) and the object's extinction, magnitudes."""
         b = self.sky_brightness_nl(z_rad, zs_rad, rs_deg, k)
-        bright = b > 1500.0
-        c1 = np.where(bright, 4.4e-9, 1.58e-10)
-        c2 = np.where(bright, 1.26e-4, 0.0126)
-        th = c1 * (1.0 + np.sqrt(c2 * b)) ** 2 * observer_factor
-        return -16.57 - 2.5 * np.log10(th), k * self.airmass(z_rad)
+        th = self.threshold_fc(b) * observer_factor
+        return self.THRESHOLD_ZP - 2.5 * np.log10(th), k * self.airmass(z_rad)
+
+    def threshold_fc(self, b_nl):
+        """Hecht's threshold illuminance of a point source (foot-candles) on a background of B nL [S90 eq. 2]."""
+        b = np.asarray(b_nl, dtype=float)
+        bright = b > self.B_SWITCH
+        c1 = np.where(bright, self.C_DAY[0], self.C_NIGHT[0])
+        c2 = np.where(bright, self.C_DAY[1], self.C_NIGHT[1])
+        return c1 * (1.0 + np.sqrt(c2 * b)) ** 2
 
     def zenith_limiting_magnitude(self, k=0.2):
         """Dark-sky limiting magnitude at the zenith (Sun far below the horizon)."""
@@ -459,21 +495,26 @@ class PhysicalModel(VisibilityMethod):
 
     def describe(self, target=None, k=0.25, k_range=(0.15, 0.40), **options):
         return (f"{self.title}: extinction k = {k:g} mag/air mass (band {k_range[0]:g}-{k_range[1]:g}); "
-                "night sky, twilight and daylight after Schaefer 1998/2000, threshold after Hecht 1947/"
-                "Schaefer 1990; coefficients from memory; Moon ignored")
+                "night sky, twilight and daylight after Schaefer 1998, threshold after Hecht 1947/"
+                "Schaefer 1990; coefficients checked against transcriptions of Schaefer's 1998 program; "
+                "single air mass for the total k; Moon ignored")
 
 
 def extinction_coefficient(elevation_m=0.0, relative_humidity=50.0, temperature_C=20.0,
                            latitude_deg=30.0, month=7):
     """Total V-band extinction coefficient k (mag per air mass) from site conditions.
 
-    Sum of Rayleigh, aerosol, ozone and water-vapour terms in the form of
-    Schaefer (1998, 2000), coefficients **from memory** (check_values §6.2 [M]):
+    Sum of Rayleigh, aerosol, ozone and water-vapour terms of Schaefer (1998,
+    "To the visual limits", the V band of the VISLIMIT program, checked against
+    transcribed listings):
     ``k_R = 0.1066 exp(-h/8200)``;
-    ``k_A = 0.120 exp(-h/1500) (1 - 0.32 / ln(RH/100))^1.33 (1 + 0.33 sign(lat) sin(season))``;
+    ``k_A = 0.1 exp(-h/1500) (1 - 0.32 / ln(RH/100))^1.33 (1 + 0.33 sign(lat) sin(season))``;
     ``k_O = 0.031 (3 + 0.4 (lat cos(season) - cos(3 lat))) / 3``;
     ``k_W = 0.031 * 0.94 (RH/100) exp(T/15) exp(-h/8200)``;
-    with season = (month - 3) * 30 degrees and lat in radians.
+    with h in metres, season = (month - 3) * 30 degrees and lat in radians.
+    The aerosol coefficient was held as 0.120 from memory; the program has 0.1.
+    The seasonal factor 0.33 is that of the visual-limit program; the CCD-limit
+    program of the same article prints ``(1 + sign(lat) sin(season))`` without it.
 
     Returns
     -------
@@ -484,7 +525,7 @@ def extinction_coefficient(elevation_m=0.0, relative_humidity=50.0, temperature_
     lat = np.radians(float(latitude_deg))
     ra = np.radians((month - 3) * 30.0)
     kr = 0.1066 * np.exp(-h / 8200.0)
-    ka = 0.120 * np.exp(-h / 1500.0) * (1.0 - 0.32 / np.log(rh / 100.0)) ** 1.33
+    ka = 0.1 * np.exp(-h / 1500.0) * (1.0 - 0.32 / np.log(rh / 100.0)) ** 1.33
     ka *= 1.0 + 0.33 * np.sign(lat) * np.sin(ra)
     ko = 0.031 * (3.0 + 0.4 * (lat * np.cos(ra) - np.cos(3.0 * lat))) / 3.0
     kw = 0.031 * 0.94 * (rh / 100.0) * np.exp(float(temperature_C) / 15.0) * np.exp(-h / 8200.0)

@@ -119,8 +119,9 @@ class HeliacalDetector(Detector):
             "refraction at the horizon varies with the weather by several arcminutes",
         ]
         if method == "physical":
-            warnings.append("physical model: coefficients after Schaefer as recalled (not verified against the "
-                            "primary text); the Moon is ignored")
+            warnings.append("physical model: coefficients checked against transcriptions of Schaefer's 1998 "
+                            "program and his 1990 threshold law, not against the printed articles; one air mass "
+                            "for the total k; the Moon and the object's colour are ignored")
         prov = build(jd_tt=ev["jd_tt"] if len(ev["jd_tt"]) else [jd_tt_start, jd_tt_end], deltat=deltat,
                      ephemeris=True, models=models, site=site, extra_warnings=warnings)
         table = EventTable(cols, meta, prov)
