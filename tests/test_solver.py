@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import itertools
 import json
+import os
 import textwrap
 
 import numpy as np
@@ -88,8 +89,63 @@ def _solved_pairs(result, ids):
 # --------------------------------------------------------------- schema
 def test_demo_record_loads():
     rec = load_record("demo_events/record_kesh_ammat.toml")
-    assert rec.ids[:2] == ["equinox", "new-crescent"]
+    assert rec.ids[:2] == ["new-crescent", "eclipse-day-14"]
     assert any(r.type == "regnal" for r in rec.relations)
+    assert [os.path.basename(p) for p in rec.lunisolar] == ["invented_lunisolar_kesh.toml"]
+    assert rec.observation("sirius").date.calendar == "kesh-moons"
+
+
+def test_record_lunisolar_files_are_named_by_the_record(tmp_path):
+    """A record's ``lunisolar`` files give calendars its dates can name, without CALENDRA_LUNISOLAR."""
+    import shutil
+
+    shutil.copy("demo_events/invented_lunisolar_kesh.toml", tmp_path / "cal.toml")
+    body = """
+        [record]
+        window = "-780..-776"
+        site = "32.80,44.60,40"
+        lunisolar = "cal.toml"
+        [[observation]]
+        id = "crescent"
+        detector = "crescent"
+        kind = "first-crescent"
+        [observation.date]
+        calendar = "kesh-moons"
+        month = 8
+        day = 1
+        tolerance_days = 1
+    """
+    res = date_record(_write(tmp_path, body), sweep="off", top=100)
+    assert res.solutions
+    for s in res.solutions:
+        assert s.events[0]["stated_calendar"] == "kesh-moons"
+    # without the key the calendar is unknown, and the message names the key at fault
+    with pytest.raises(RecordError, match="date.calendar"):
+        date_record(_write(tmp_path, body.replace('lunisolar = "cal.toml"', ""), "r2.toml"), sweep="off")
+    with pytest.raises(RecordError, match=r"\[record\], key 'lunisolar'"):
+        date_record(_write(tmp_path, body.replace('"cal.toml"', '"missing.toml"'), "r3.toml"), sweep="off")
+
+
+def test_record_lunisolar_files_without_the_lunisolar_plugin(tmp_path, monkeypatch):
+    """The solver imports the lunisolar plugin only for a record naming such files; absent, one clear line."""
+    import shutil
+    import sys
+
+    shutil.copy("demo_events/invented_lunisolar_kesh.toml", tmp_path / "cal.toml")
+    path = _write(tmp_path, """
+        [record]
+        window = "-780..-776"
+        lunisolar = ["cal.toml"]
+        [[observation]]
+        id = "equinox"
+        detector = "seasons"
+        kind = "vernal-equinox"
+    """)
+    monkeypatch.setitem(sys.modules, "calendra_lunisolar.generic", None)
+    with pytest.raises(RecordError) as info:
+        date_record(path, sweep="off")
+    msg = str(info.value)
+    assert "\n" not in msg and "key 'lunisolar'" in msg and "calendra_lunisolar plugin" in msg
 
 
 @pytest.mark.parametrize("body, where", [
@@ -499,11 +555,15 @@ def test_random_records_are_recovered_at_the_stated_rate(tmp_path):
 
 def test_demo_record_recovers_its_true_date():
     """The demo record (demo_events/record_kesh_ammat.toml) was written from the sky of its true date,
-    the morning of -0778-04-29 (Julian; a total lunar eclipse at Kesh-Ammat, 32.80 N 44.60 E): recompute
-    those events here, check the record's stated intervals hold for them, and that the solver ranks them
-    first."""
+    the morning of -0778-04-29 (Julian; a total lunar eclipse at Kesh-Ammat, 32.80 N 44.60 E), with its
+    months and days in the invented crescent calendar kesh-moons of the record's lunisolar file:
+    recompute those events here, check that the record's dates hold for them within their tolerances,
+    and that the solver ranks them first."""
     from calendra.dateparse import date_to_jd_tt
     from calendra.sites import parse_site
+    from calendra_lunisolar.generic import load_lunisolar
+
+    from calendra_solver.dates import date_match, event_days
 
     site = parse_site("32.80,44.60,40")
     a = date_to_jd_tt("-0778-03-01")
@@ -513,18 +573,36 @@ def test_demo_record_recovers_its_true_date():
     cres = cres.select(np.asarray(cres["kind"]).astype(str) == "first-crescent")
     e_t = float(ecl["jd_tt"][0])
     c_t = float(cres["jd_tt"][np.searchsorted(cres["jd_tt"], e_t) - 1])
-    s_t = float(_events("heliacal", c_t, c_t + 150, site, object="Sirius")["jd_tt"][0])
+    sir = _events("heliacal", c_t, c_t + 150, site, object="Sirius")
+    s_t, s_ut = float(sir["jd_tt"][0]), float(sir["jd_ut"][0])
+    b = date_to_jd_tt("-0775-12-01")
+    ecl10 = _events("eclipses", b, b + 120, site, kind="lunar")
+    ecl10 = ecl10.select((np.asarray(ecl10["umbral_mag"], float) >= 1) &
+                         (np.asarray(ecl10["seen"]).astype(str) == "yes") &
+                         (np.asarray(ecl10["moon_alt_max"], float) >= 45))
+    t10, ut10 = float(ecl10["jd_tt"][0]), float(ecl10["jd_ut"][0])
     rec = load_record("demo_events/record_kesh_ammat.toml")
     rel = {r.members: r for r in rec.relations}
     r = rel[("new-crescent", "eclipse-day-14")]
     assert abs(e_t - c_t - r.days) <= r.plus_minus
-    r = rel[("new-crescent", "sirius")]
-    assert abs(s_t - c_t - r.days) <= r.plus_minus
+    temple = next(c for p in rec.lunisolar for c in load_lunisolar(p) if c.name == "kesh-moons")
+    from calendra.deltat import get_model
+
+    model = get_model(None)
+    e_ut = float(ecl["jd_ut"][0])
+    days = event_days(np.array([e_ut, s_ut, ut10]), temple.day_start, site, model)
+    got = temple.from_jdn(days)
+    year = np.asarray(got["year"])
+    assert year[1] == year[0] and year[2] == year[0] + 4          # same temple year; VIII -> VI of year + 4
+    for k, oid in enumerate(["eclipse-day-14", "sirius", "eclipse-year-10"]):
+        ok, _ = date_match(temple, days[k:k + 1], rec.observation(oid).date)
+        assert ok[0], oid
     res = date_record(rec)
     best = {ev["observation"]: ev for ev in res.solutions[0].events}
     assert best["eclipse-day-14"]["jd_tt"] == pytest.approx(e_t, abs=1e-4)
     assert best["new-crescent"]["jd_tt"] == pytest.approx(c_t, abs=1e-4)
     assert best["sirius"]["jd_tt"] == pytest.approx(s_t, abs=1e-4)
+    assert best["eclipse-year-10"]["jd_tt"] == pytest.approx(t10, abs=1e-4)
 
 
 # --------------------------------------------------------------- published dating

@@ -13,7 +13,9 @@ Record schema (complete reference with every key: ``SCHEMA.md`` beside this file
     ``window`` (required: ``"FROM..TO"`` or ``[FROM, TO]``, years or dates in any
     form calendra reads), ``site`` (gazetteer name or ``LAT,LON[,ELEV]``),
     ``title``, ``source``, ``note``, ``delta_t`` (model name), ``eras`` (era files
-    with reign lists, relative to the record), ``top`` (solutions shown).
+    with reign lists, relative to the record), ``lunisolar`` (lunisolar calendar
+    files, relative to the record, read by the lunisolar plugin), ``top``
+    (solutions shown).
 ``[record.delta_t_sweep]``
     ``mode`` (``near`` default, ``full``, ``off``), ``n_sigma`` (2), ``steps`` (5),
     ``match_days`` (3).
@@ -28,7 +30,7 @@ Record schema (complete reference with every key: ``SCHEMA.md`` beside this file
     ``column`` with ``min``/``max`` (plus a soft ``tolerance``), ``target`` with
     ``tolerance``, ``equals`` or ``one_of``; residuals in the column's unit.
 ``[observation.date]``
-    ``calendar`` (any installed calendar or one of the era files), any of its
+    ``calendar`` (any installed calendar or one of the era or lunisolar files), any of its
     fields (only those the source gives: ``month = 2, day = 14``, year
     unknown), ``ruler`` (for reign lists: "year 7 of ruler R"),
     ``tolerance_days`` (0..30), ``not_before``, ``not_after``.

@@ -30,11 +30,19 @@ MAX_EPOCH_SAMPLES = 20000
 
 
 class CalendarBook:
-    """Calendars a record may name: those of its era files first, then the installed ones."""
+    """Calendars a record may name: those of its lunisolar and era files first, then the installed ones.
 
-    def __init__(self, host, era_files=(), fail=None):
+    Lunisolar calendar files (``[record]`` key ``lunisolar``) are read by the
+    lunisolar plugin's public :func:`calendra_lunisolar.generic.load_lunisolar`,
+    imported only when a record names such a file.
+    """
+
+    def __init__(self, host, era_files=(), fail=None, lunisolar_files=()):
         self.host = host
         self.local = {}
+        for path in lunisolar_files:
+            for cal in _load_lunisolar(path, fail):
+                self._add(cal)
         for path in era_files:
             try:
                 from calendra_eras.user_eras import load_eras
@@ -45,10 +53,13 @@ class CalendarBook:
             except CalendraError as exc:
                 raise fail("[record], key 'eras'", str(exc)) from None
             for cal in cals:
-                self.local[cal.name.lower()] = cal
-                for a in getattr(cal, "aliases", ()):
-                    self.local[a.lower()] = cal
+                self._add(cal)
         self._cache = {}
+
+    def _add(self, cal):
+        self.local[cal.name.lower()] = cal
+        for a in getattr(cal, "aliases", ()):
+            self.local[a.lower()] = cal
 
     def get(self, spec: str):
         """Return the calendar named ``spec`` (``NAME[opt=value]`` allowed)."""
@@ -67,6 +78,20 @@ class CalendarBook:
 
     def calendars(self):
         return list(self._cache.values())
+
+
+def _load_lunisolar(path, fail):
+    """Calendars of one lunisolar calendar file, through the lunisolar plugin (imported here, on demand)."""
+    where = "[record], key 'lunisolar'"
+    try:
+        from calendra_lunisolar.generic import load_lunisolar
+    except ImportError:
+        raise fail(where, f"{path}: lunisolar calendar files need the calendra_lunisolar plugin, "
+                          "which is not installed") from None
+    try:
+        return load_lunisolar(path)
+    except CalendraError as exc:
+        raise fail(where, str(exc)) from None
 
 
 @dataclass

@@ -154,7 +154,7 @@ def prepare(record, host=None, window=None, site=None, deltat=None) -> Problem:
         if o.date is not None and o.date.not_after:
             na = _to_tt(o.date.not_after, host, model, fail, f"{where}, key 'date.not_after'")
         bounds.append((nb, na))
-    book = CalendarBook(host, record.eras, fail)
+    book = CalendarBook(host, record.eras, fail, lunisolar_files=record.lunisolar)
     # calendars named by dates and relations; their free epochs
     named = []
     for o in record.observations:

@@ -30,7 +30,8 @@ else:  # pragma: no cover - Python 3.10
 
 _ID_RE = re.compile(r"^[A-Za-z][A-Za-z0-9_\-]*$")
 
-RECORD_KEYS = {"title", "source", "note", "window", "site", "delta_t", "eras", "top", "delta_t_sweep"}
+RECORD_KEYS = {"title", "source", "note", "window", "site", "delta_t", "eras", "lunisolar", "top",
+               "delta_t_sweep"}
 SWEEP_KEYS = {"mode", "n_sigma", "steps", "match_days"}
 SWEEP_MODES = ("near", "full", "off")
 OBS_KEYS = {"id", "text", "detector", "params", "site", "kind", "where", "require", "date", "margin",
@@ -142,6 +143,7 @@ class Record:
     site: str | None = None
     delta_t: str | None = None
     eras: tuple = ()
+    lunisolar: tuple = ()            # lunisolar calendar files (absolute paths)
     top: int = 5
     sweep: Sweep = field(default_factory=Sweep)
     source: str = ""
@@ -207,13 +209,9 @@ def record_from_dict(doc: dict, path: str = "<record>", host=None) -> Record:
     _check_keys(rec, RECORD_KEYS, fail, "[record]")
     window = _window(rec.get("window"), fail)
     sweep = _sweep(rec.get("delta_t_sweep", {}), fail)
-    eras = rec.get("eras", [])
-    if isinstance(eras, str):
-        eras = [eras]
-    if not isinstance(eras, list) or not all(isinstance(e, str) for e in eras):
-        raise fail("[record], key 'eras'", "a list of era-file paths (relative to the record)")
     base = os.path.dirname(os.path.abspath(path)) if path != "<record>" else os.getcwd()
-    eras = tuple(e if os.path.isabs(e) else os.path.join(base, e) for e in eras)
+    eras = _paths(rec, "eras", "era-file", base, fail)
+    lunisolar = _paths(rec, "lunisolar", "lunisolar-calendar-file", base, fail)
     top = rec.get("top", 5)
     if not isinstance(top, int) or isinstance(top, bool) or top < 1:
         raise fail("[record], key 'top'", f"{top!r}: a whole number >= 1")
@@ -248,7 +246,17 @@ def record_from_dict(doc: dict, path: str = "<record>", host=None) -> Record:
                                                     "or in the observation (or give --site)")
     return Record(path=path, title=rec.get("title", os.path.basename(path)), window=window,
                   observations=observations, relations=relations, site=site, delta_t=rec.get("delta_t"),
-                  eras=eras, top=top, sweep=sweep, source=rec.get("source", ""), note=rec.get("note", ""))
+                  eras=eras, lunisolar=lunisolar, top=top, sweep=sweep, source=rec.get("source", ""), note=rec.get("note", ""))
+
+
+def _paths(rec, key, what, base, fail) -> tuple:
+    """A ``[record]`` list of file paths (one path allowed), made absolute relative to the record."""
+    items = rec.get(key, [])
+    if isinstance(items, str):
+        items = [items]
+    if not isinstance(items, list) or not all(isinstance(e, str) and e.strip() for e in items):
+        raise fail(f"[record], key {key!r}", f"a list of {what} paths (relative to the record)")
+    return tuple(e if os.path.isabs(e) else os.path.join(base, e) for e in items)
 
 
 class _Fail:
