@@ -42,17 +42,21 @@ _INT32_SAFE = 400_000_000
 
 
 def _blocked(func, arrays):
-    """Apply ``func`` to broadcast int arrays block by block, in int32 where exact; return int64 arrays."""
+    """Apply ``func`` to broadcast int arrays block by block, in int32 where exact; return int64 arrays.
+
+    Each block is cast to int32 (and range-checked) while it sits in the processor cache; a block
+    holding a value beyond :data:`_INT32_SAFE` is computed in int64 instead.
+    """
     arrays = np.broadcast_arrays(*arrays)
     shape = arrays[0].shape
     flat = [a.reshape(-1) for a in arrays]
     n = flat[0].size
-    small = all((a.size == 0) or (int(a.min()) > -_INT32_SAFE and int(a.max()) < _INT32_SAFE) for a in flat)
-    dtype = np.int32 if small else np.int64
-    flat = [a.astype(dtype, copy=False) for a in flat]
     outs = None
     for start in range(0, max(n, 1), _BLOCK):
-        block = func(*(a[start:start + _BLOCK] for a in flat))
+        parts = [a[start:start + _BLOCK] for a in flat]
+        if all(p.size == 0 or (p.min() > -_INT32_SAFE and p.max() < _INT32_SAFE) for p in parts):
+            parts = [p.astype(np.int32) for p in parts]
+        block = func(*parts)
         if outs is None:
             outs = [np.empty(n, dtype=bool if b.dtype == bool else np.int64) for b in block]
         for o, b in zip(outs, block):
