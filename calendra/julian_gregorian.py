@@ -67,26 +67,21 @@ def _blocked(func, arrays):
     return result
 
 
-def _march_day_of_year(m, d):
-    # Days since March 1 of the counting year (March = 0 ... February = 11).
-    mp = m + 9 - 12 * (m > 2)
-    return (153 * mp + 2) // 5 + d - 1
-
-
-def _civil_from_march(doy, yoe_plus_era):
-    mp = (5 * doy + 2) // 153
-    day = doy - (153 * mp + 2) // 5 + 1
-    late = mp >= 10                         # January or February of the next civil year
-    month = mp + 3 - 12 * late
-    return yoe_plus_era + late, month, day
-
-
-def _greg_to(y, m, d):
-    y = y - (m <= 2)
-    era = y // 400
-    yoe = y - era * 400
-    doe = yoe * 365 + yoe // 4 - yoe // 100 + _march_day_of_year(m, d)
-    return (era * 146097 + doe + _GREGORIAN_MARCH_EPOCH,)
+def _civil_from_march(doy, year):
+    # Month and day from the day of the March-based year (modifies its arguments, both temporaries).
+    mp = doy * 5
+    mp += 2
+    mp //= 153                               # March = 0 ... February = 11
+    start = mp * 153
+    start += 2
+    start //= 5
+    doy -= start
+    doy += 1                                 # day of the month
+    late = mp >= 10                          # January or February of the next civil year
+    mp += 3
+    mp -= 12 * late
+    year += late
+    return year, mp, doy
 
 
 def _greg_from(jdn):
@@ -98,35 +93,87 @@ def _greg_from(jdn):
     return _civil_from_march(doy, yoe + era * 400)
 
 
-def _jul_to(y, m, d):
-    y = y - (m <= 2)
-    # y >> 2 and y & 3 are floor division and modulo by 4, also for negative years (two's complement).
-    return ((y >> 2) * 1461 + (y & 3) * 365 + _march_day_of_year(m, d) + _JULIAN_MARCH_EPOCH,)
-
-
 def _jul_from(jdn):
     z = jdn - _JULIAN_MARCH_EPOCH
     era = z // 1461
-    doe = z - era * 1461
-    yoe = (doe - doe // 1460) // 365
-    doy = doe - 365 * yoe
-    return _civil_from_march(doy, yoe + era * 4)
+    z -= era * 1461                          # day of the 4-year era
+    yoe = z - z // 1460
+    yoe //= 365
+    z -= 365 * yoe                           # day of the March-based year
+    era *= 4
+    era += yoe
+    return _civil_from_march(z, era)
+
+
+#: Month lengths indexed by ``month | 16 * leap`` (months 0 and 13..15 have none, so they fail).
+_LENGTHS = np.array([0, 31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31, 0, 0, 0] * 2, dtype=np.int32)
+_LENGTHS[16 + 2] = 29
 
 
 def _month_ok(y, m, d, leap):
-    # Month lengths without a table: 30 + ((m ^ (m >> 3)) & 1) gives 31/30 for every month but February.
-    length = 30 + ((m ^ (m >> 3)) & 1) - (m == 2) * (2 - leap)
-    return (m >= 1) & (m <= 12) & (d >= 1) & (d <= length)
+    # 1 <= m <= 12 and 1 <= d <= length, with unsigned views folding each pair of bounds into one test.
+    idx = m & 15
+    idx |= leap.view(np.uint8).astype(idx.dtype) << 4
+    unsigned = np.uint32 if m.dtype == np.int32 else np.uint64
+    ok = (m - 1).view(unsigned) < 12
+    ok &= (d - 1).view(unsigned) < _LENGTHS.take(idx)
+    return ok
+
+
+def _jul_to(y, m, d):
+    # Days counted in 4-year eras from a March-based year; in-place steps keep one temporary in cache.
+    yy = y - (m <= 2)
+    doy = m + 9
+    doy %= 12
+    doy *= 153
+    doy += 2
+    doy //= 5
+    doy += d
+    jdn = yy >> 2
+    jdn *= 1461
+    yy &= 3
+    yy *= 365
+    jdn += yy
+    jdn += doy
+    jdn += _JULIAN_MARCH_EPOCH - 1
+    return jdn
+
+
+def _greg_to(y, m, d):
+    # Days counted in 400-year eras from a March-based year; in-place steps keep one temporary in cache.
+    yy = y - (m <= 2)
+    era = yy // 400
+    yy -= era * 400                          # year of era, 0..399
+    doe = yy * 365
+    doe += yy >> 2
+    doe -= yy // 100
+    doy = m + 9
+    doy %= 12
+    doy *= 153
+    doy += 2
+    doy //= 5
+    doy += d
+    doe += doy
+    era *= 146097
+    era += doe
+    era += _GREGORIAN_MARCH_EPOCH - 1
+    return era
 
 
 def _greg_to_checked(y, m, d):
-    # y % 100 != 0 is y % 25 != 0 among multiples of 4; y % 400 == 0 is then y % 16 == 0.
-    leap = ((y & 3) == 0) & (((y % 25) != 0) | ((y & 15) == 0))
-    return _greg_to(y, m, d) + (_month_ok(y, m, d, leap),)
+    # Validate as if every fourth year were leap (the Julian rule), then reject February 29 of the
+    # century years that are not multiples of 400: a handful of dates, looked at on their own.
+    ok = _month_ok(y, m, d, (y & 3) == 0)
+    feb29 = ok & (d == 29) & (m == 2)
+    if feb29.any():
+        idx = np.flatnonzero(feb29)
+        yf = y[idx]
+        ok[idx] = (yf % 100 != 0) | (yf % 400 == 0)
+    return _greg_to(y, m, d), ok
 
 
 def _jul_to_checked(y, m, d):
-    return _jul_to(y, m, d) + (_month_ok(y, m, d, (y & 3) == 0),)
+    return _jul_to(y, m, d), _month_ok(y, m, d, (y & 3) == 0)
 
 
 def gregorian_to_jdn_checked(year, month, day):
@@ -143,7 +190,7 @@ def julian_to_jdn_checked(year, month, day):
 
 def gregorian_to_jdn(year, month, day):
     """Return the day number of a proleptic Gregorian date (no validation)."""
-    return _blocked(_greg_to, (as_int_array(year), as_int_array(month), as_int_array(day)))[0]
+    return _blocked(lambda *f: (_greg_to(*f),), (as_int_array(year), as_int_array(month), as_int_array(day)))[0]
 
 
 def gregorian_from_jdn(jdn):
@@ -153,7 +200,7 @@ def gregorian_from_jdn(jdn):
 
 def julian_to_jdn(year, month, day):
     """Return the day number of a proleptic Julian date (no validation)."""
-    return _blocked(_jul_to, (as_int_array(year), as_int_array(month), as_int_array(day)))[0]
+    return _blocked(lambda *f: (_jul_to(*f),), (as_int_array(year), as_int_array(month), as_int_array(day)))[0]
 
 
 def julian_from_jdn(jdn):
