@@ -24,6 +24,8 @@ from .errors import DateParseError, InvalidDateError
 
 #: Day boundaries a calendar can declare.
 DAY_STARTS = ("midnight", "sunset", "sunrise", "noon")
+#: The default :attr:`Calendar.valid_jdn`: a calendar defined for every day (+-8 million years).
+UNBOUNDED_JDN = (-3_000_000_000, 3_000_000_000)
 
 
 class Calendar:
@@ -62,7 +64,7 @@ class Calendar:
     day_start: ClassVar[str] = "midnight"
     year_numbering: ClassVar[str] = ""
     epoch_jdn: ClassVar[int | None] = None
-    valid_jdn: tuple[int, int] = (-3_000_000_000, 3_000_000_000)
+    valid_jdn: tuple[int, int] = UNBOUNDED_JDN
     options: ClassVar[Mapping[str, str]] = {}
     invertible: ClassVar[bool] = True
 
@@ -90,7 +92,8 @@ class Calendar:
             If a day number is outside :attr:`valid_jdn`.
         """
         jdn = as_int_array(jdn)
-        self.check_range(jdn)
+        if self.valid_jdn != UNBOUNDED_JDN:      # an unbounded calendar needs no range pass
+            self.check_range(jdn)
         out = self._from_jdn(jdn)
         return dict(zip(self.fields, out))
 
