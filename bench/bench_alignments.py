@@ -211,8 +211,8 @@ def main(quick=False):
          (t_py[0] * scale, t_py[1] * scale), None),
     ]
     whole = t_iv[1] + t_m[1]          # CPU seconds (the machine may be shared)
-    print(f"| task | wall s | CPU s |")
-    print(f"|---|---:|---:|")
+    print("| task | wall s | CPU s |")
+    print("|---|---:|---:|")
     for label, (w, c), _ in rows:
         print(f"| {label} | {w:.3f} | {c:.3f} |")
     print()

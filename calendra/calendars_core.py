@@ -168,7 +168,6 @@ class WesternCalendar(_JulianGregorianBase):
 
     def __init__(self, reform="rome"):
         self.reform_jdn = parse_reform(reform)
-        self._reform_spec = reform
         self.options = {"reform": self._reform_date_text()}
         # Julian date of the last Julian day.
         self._last_julian = tuple(int(v) for v in jg.julian_from_jdn(self.reform_jdn - 1))

@@ -163,8 +163,6 @@ def _scale(word, text) -> str:
 
 def _parse_partial(s, cal, original):
     """Year alone or year and month, for range bounds."""
-    from .calendar import parse_ymd_text
-
     nfields = len(cal.fields)
     tokens = s.split()
     era = None

@@ -74,7 +74,7 @@ def calendar_day(jd_ut, day_start, site=None, deltat=None, altitude_deg=STANDARD
     return day - (jd_ut < t_rise)
 
 
-def sun_crossing(day, site, deltat, rising: bool, altitude_deg=STANDARD_SUN_ALTITUDE_DEG, iterations=None):
+def sun_crossing(day, site, deltat, rising: bool, altitude_deg=STANDARD_SUN_ALTITUDE_DEG):
     """Return the UT1 Julian Day when the Sun's centre crosses ``altitude_deg`` on civil day ``day`` at the site.
 
     Vectorized over ``day``; computed by :func:`calendra.riseset.sun_crossing_on_days`
@@ -93,8 +93,6 @@ def sun_crossing(day, site, deltat, rising: bool, altitude_deg=STANDARD_SUN_ALTI
     altitude_deg : float
         Airless altitude of the Sun's centre, degrees (refraction and
         semi-diameter included in the value).
-    iterations : None
-        Unused; convergence is decided per day by the rise/set solver.
     """
     from .riseset import sun_crossing_on_days
 

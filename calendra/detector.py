@@ -14,7 +14,7 @@ array jobs (numpy over all candidate times), never a day-by-day Python loop.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any, Callable, ClassVar, Sequence
 
 from .errors import ParameterError

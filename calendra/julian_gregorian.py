@@ -31,7 +31,6 @@ GREGORIAN_REFORM_JDN = 2299161
 #: Day number of the first Gregorian day in Great Britain and its colonies, 1752-09-14.
 GREGORIAN_REFORM_BRITAIN_JDN = 2361222
 
-_MONTH_DAYS = np.array([0, 31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31], dtype=np.int64)
 _CUMULATIVE = np.array([0, 0, 31, 59, 90, 120, 151, 181, 212, 243, 273, 304, 334], dtype=np.int64)
 
 
@@ -226,9 +225,8 @@ def month_length(year, month, leap_rule):
     """
     y = as_int_array(year)
     m = as_int_array(month)
-    ok = (m >= 1) & (m <= 12)
-    mi = np.where(ok, m, 0)
-    return np.where(ok, _MONTH_DAYS[mi] + ((mi == 2) & leap_rule(y)), 0)
+    mi = np.where((m >= 1) & (m <= 12), m, 0)            # month 0 has length 0 in the table
+    return _LENGTHS.take(mi | (np.asarray(leap_rule(y), dtype=np.int64) << 4)).astype(np.int64)
 
 
 def day_of_year(year, month, day, leap_rule):

@@ -789,9 +789,9 @@ def daily_events(body, site, days, *, deltat=None, horizon: Horizon | None = Non
     t_rise, az_rise, f_rise = eng.crossings(tr, -1, horizon)
     t_set, az_set, f_set = eng.crossings(tr, +1, horizon)
     if transit:
-        tr_full, tr_alt, tr_f = eng.transits_full(tr)
+        tr_full, tr_alt, _ = eng.transits_full(tr)
     else:
-        tr_full, tr_alt, tr_f = tr, eng.guide(tr)[0], np.zeros(tr.shape, np.int8)
+        tr_full, tr_alt = tr, eng.guide(tr)[0]
     rise, (raz,), n_rise = _first_per_day(days, t_rise, [az_rise], site)
     sett, (saz,), n_set = _first_per_day(days, t_set, [az_set], site)
     trans, (talt,), n_tr = _first_per_day(days, tr_full, [tr_alt], site)

@@ -1,7 +1,5 @@
 """Shared fixtures of the test suite."""
 
-import os
-
 import pytest
 from hypothesis import HealthCheck, settings
 
@@ -34,3 +32,13 @@ def default_deltat():
     from calendra.deltat import DEFAULT_MODEL, get_model
 
     return get_model(DEFAULT_MODEL)
+
+
+@pytest.fixture(scope="session")
+def skyfield_tools():
+    """skyfield's almanac, a built-in timescale and find_discrete: the reference search of the trade."""
+    from skyfield import almanac
+    from skyfield.api import load
+    from skyfield.searchlib import find_discrete
+
+    return almanac, load.timescale(builtin=True), find_discrete

@@ -1,7 +1,6 @@
 """Which calendar day an instant falls on, for days beginning at midnight, noon, sunset or sunrise."""
 
 import numpy as np
-import pytest
 from skyfield import almanac
 from skyfield.api import wgs84
 

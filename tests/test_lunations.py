@@ -26,15 +26,6 @@ def all_phases():
     return lunar_phases(*SPAN_JD)
 
 
-@pytest.fixture(scope="module")
-def skyfield_tools():
-    from skyfield import almanac
-    from skyfield.api import load
-    from skyfield.searchlib import find_discrete
-
-    return almanac, load.timescale(builtin=True), find_discrete
-
-
 # ------------------------------------------------------------ published examples
 
 def test_meeus_example_49a_new_moon_1977_february():

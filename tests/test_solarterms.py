@@ -29,15 +29,6 @@ def all_seasons():
 
 
 @pytest.fixture(scope="module")
-def skyfield_tools():
-    from skyfield import almanac
-    from skyfield.api import load
-    from skyfield.searchlib import find_discrete
-
-    return almanac, load.timescale(builtin=True), find_discrete
-
-
-@pytest.fixture(scope="module")
 def de421():
     """DE421 from the skyfield-data package, closed after the module."""
     with warnings.catch_warnings():

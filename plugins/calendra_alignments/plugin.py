@@ -12,8 +12,6 @@ from calendra.hookspecs import hookimpl
 
 @hookimpl
 def calendra_cli_commands():
-    import click  # noqa: F401  (the command line's toolkit; imported here, not at plugin load)
-
-    from .cli import align_command
+    from .cli import align_command   # imports click: only when the command line asks
 
     return [align_command()]

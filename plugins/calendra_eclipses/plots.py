@@ -35,7 +35,7 @@ def plot_solar(ecl, site, report, path, deltat):
     lats = [site.latitude_deg]
     shifts = [(0.0, "-", "central line (model delta T)")]
     if sigma:
-        shifts += [(-sigma, "--", f"delta T - 1 sigma ({sigma:.0f} s)"), (sigma, ":", f"delta T + 1 sigma")]
+        shifts += [(-sigma, "--", f"delta T - 1 sigma ({sigma:.0f} s)"), (sigma, ":", "delta T + 1 sigma")]
     for off, style, label in shifts:
         _, lat, lon, l2 = central_line(ecl, 0, step_min=2.0, delta_t_s=dt + off)
         if lat.size == 0:
