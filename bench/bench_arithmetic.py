@@ -10,7 +10,7 @@ process, single-threaded; a markdown table goes to standard output.
 
 Usage::
 
-    python bench/bench_arithmetic.py [--n 1000000] [--loop 20000] [--budget 2] [--repeat 5]
+    python bench/bench_arithmetic.py [--n 1000000] [--loop 20000] [--budget 2] [--repeat 5] [--only CAL ...]
 
 Day numbers are drawn from -3000..+3000 (Gregorian years), or from the part
 of it that convertdate accepts for that calendar (column "span").
@@ -119,6 +119,7 @@ def main():
     ap.add_argument("--loop", type=int, default=20_000, help="dates per convertdate loop")
     ap.add_argument("--budget", type=float, default=2.0, help="seconds at most per convertdate loop")
     ap.add_argument("--repeat", type=int, default=5, help="timings per measurement (the best is kept)")
+    ap.add_argument("--only", nargs="*", default=None, metavar="CAL", help="measure these calendars only")
     args = ap.parse_args()
     rng = np.random.default_rng(7)
     print(f"Arithmetic calendars: {args.n:,} day numbers per calendar, both directions (calendra: one "
@@ -130,6 +131,8 @@ def main():
           "convertdate to_jd | x from | x to | x round trip | note |")
     print("|---|---|---|---|---|---|---|---|---|---|")
     for cal in arithmetic_calendars():
+        if args.only and cal.name not in args.only:
+            continue
         peer_from, peer_to, (lo, hi), note = PEERS[cal.name]
         jdn = rng.integers(lo, hi, args.n)
         t_from, fields = best_of(lambda: cal.from_jdn(jdn), args.repeat)

@@ -81,3 +81,32 @@ def test_vectorized_equals_scalar_and_days_are_ordered(cal):
         # Distinct days have distinct dates (no two days share a name).
         keys = set(zip(*(c.tolist() for c in cols)))
         assert len(keys) == len(jdn)
+
+
+@pytest.mark.parametrize("cal", [c for c in CALENDARS if _invertible(c)], ids=lambda c: c.name)
+def test_invalid_dates_are_caught_in_every_block_of_a_large_array(cal):
+    # Invariant: to_jdn on an array larger than several evaluation blocks raises exactly when
+    # is_valid (the element-wise mask) has a False, and the error's mask is that mask, wherever
+    # the bad dates sit: first, middle or last (partial) block.
+    from calendra.errors import InvalidDateError
+    lo, hi = _bounds(cal)
+    start = max(lo, 1721425 - 300 * 365)
+    jdn = np.arange(start, min(hi, start + 100_003))
+    fields = cal.from_jdn(jdn)
+    cols = [np.array(fields[f], dtype=np.int64) for f in cal.fields]
+    assert np.array_equal(cal.to_jdn(*cols), jdn)
+    rng = np.random.default_rng(3)
+    for k, _ in enumerate(cols):
+        column = cols[k]
+        # One past the largest and below the smallest value the field takes, and far off.
+        for value in (column.max() + 1, column.min() - 1, None, 2**40, -2**40):
+            for where in (0, 50_000, len(jdn) - 1, int(rng.integers(len(jdn)))):
+                bad = [c.copy() for c in cols]
+                bad[k][where] = column[where] + 40 if value is None else value
+                mask = ~np.asarray(cal.is_valid(*bad))
+                if not mask.any():
+                    cal.to_jdn(*bad)          # a shifted field that is still a date: no error
+                    continue
+                with pytest.raises(InvalidDateError) as info:
+                    cal.to_jdn(*bad)
+                assert np.array_equal(info.value.mask, mask)

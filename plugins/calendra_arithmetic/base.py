@@ -29,11 +29,12 @@ from .textforms import NameTable, parse_year_month_day, year_with_era
 
 #: Elements per block of the block-wise evaluation: small enough that the temporaries of one block
 #: stay in the processor cache, large enough that numpy's per-call overhead does not matter.
-BLOCK = 16384
+BLOCK = 32768
 #: Columns of a month table: months 0..31 (index 0 and months a calendar lacks have length 0;
 #: month numbers beyond are clipped to the last column, also of length 0).
 MONTH_COLUMNS = 32
 _U64 = np.uint64
+_I30 = np.int64(30)
 
 
 def floor_divmod(a, n: int):
@@ -69,6 +70,14 @@ def blockwise(fn, arrays):
     return tuple(out.reshape(shape) for out in outs)
 
 
+def umax(values) -> int:
+    """Return the largest of int64 ``values`` read as unsigned (negative values count as huge).
+
+    ``umax(v) < n`` checks ``0 <= v < n`` for a whole block with one reduction.
+    """
+    return int(np.asarray(values).view(_U64).max()) if np.size(values) else 0
+
+
 def below(values, limit):
     """Return ``0 <= values < limit`` element-wise with one unsigned comparison (limit >= 0).
 
@@ -84,7 +93,12 @@ class BlockwiseMixin:
 
     A calendar using it implements ``_checked_to_jdn(*fields) -> (days, ok)``
     (day numbers less :attr:`_jdn_offset`, and the mask of dates that exist)
-    and ``_from_jdn``.
+    and ``_from_jdn``.  It may also implement a faster block writer
+    ``_to_jdn_block(out, *fields) -> bool`` that writes the day numbers of
+    one block into ``out`` and returns whether *every* date of the block
+    exists (typically from min/max reductions, which cost a fraction of an
+    element-wise mask); the exact mask is then computed only to report an
+    invalid date.
     """
 
     #: Constant that ``_checked_to_jdn`` leaves out of its day numbers; adding it while the block
@@ -101,20 +115,25 @@ class BlockwiseMixin:
             and the error's ``mask`` marks every one.
         """
         values = np.broadcast_arrays(*self._gather(fields, named))
+        shape = values[0].shape
         size = values[0].size
-        if size <= 2 * BLOCK:
-            days, ok = self._checked_to_jdn(*values)
-            if not np.all(ok):
-                self._raise_invalid(values, ~np.asarray(ok))
-            return days + self._jdn_offset
         flat = [np.ascontiguousarray(v).reshape(-1) for v in values]
         out = np.empty(size, dtype=np.int64)
         for start in range(0, size, BLOCK):
-            days, ok = self._checked_to_jdn(*(v[start:start + BLOCK] for v in flat))
-            if not ok.all():
-                self._raise_invalid(values, ~blockwise(self._checked_to_jdn, values)[1])
-            np.add(days, self._jdn_offset, out=out[start:start + BLOCK])
-        return out.reshape(values[0].shape)
+            stop = start + BLOCK
+            block = [v[start:stop] for v in flat]
+            if not self._to_jdn_block(out[start:stop], *block):
+                bad = ~blockwise(self._checked_to_jdn, values)[1]
+                if bad.any():
+                    self._raise_invalid(values, bad)
+                BlockwiseMixin._to_jdn_block(self, out[start:stop], *block)   # the quick test was too strict
+        return out.reshape(shape) if shape else out[0]
+
+    def _to_jdn_block(self, out, *fields) -> bool:
+        """Write the day numbers of one block of dates into ``out``; return True if all of them exist."""
+        days, ok = self._checked_to_jdn(*fields)
+        np.add(days, self._jdn_offset, out=out)
+        return bool(ok.all())
 
     def from_jdn(self, jdn) -> dict[str, np.ndarray]:
         """Return a dict of int64 field arrays for day numbers ``jdn`` (any shape).
@@ -353,6 +372,23 @@ class EpagomenalCalendar(ArithmeticCalendar):
         ok &= below(doy, self._days_in_year(year))
         doy += self._days_before_year(year)
         return doy, ok
+
+    def _to_jdn_block(self, out, year, month, day):
+        # Days 1..30 and months 1..13 by four reductions.  The day of the year then needs an
+        # element-wise check only where it reaches 365 (a sixth epagomenal day or beyond).
+        if day.size == 0:
+            return True
+        if day.min() < 1 or umax(day) > 30 or month.min() < 1 or umax(month) > 13:
+            return False
+        np.multiply(month, _I30, out=out)
+        out += day                                        # day of the year + 31
+        if int(out.max()) >= 365 + 31:
+            late = np.flatnonzero(out >= 365 + 31)
+            if not np.all(out[late] - 31 < self._days_in_year(year[late])):
+                return False
+        out += self._days_before_year(year)
+        out += np.int64(self._jdn_offset - 31)
+        return True
 
     def _days_in_year(self, year):
         """Days of ``year`` (an int when the same for every year), for validation."""

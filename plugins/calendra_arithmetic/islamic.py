@@ -33,7 +33,7 @@ import numpy as np
 from calendra.daylib import RD_EPOCH_JDN
 
 from .base import (MONTH_COLUMNS, ArithmeticCalendar, OptionsMixin, below, floor_divmod, month_table,
-                   parse_choice_option)
+                   parse_choice_option, umax)
 
 #: Leap years of the 30-year cycle (years 1..30 of the cycle), by scheme name.
 LEAP_SCHEMES = {
@@ -56,6 +56,7 @@ EPOCHS = {"civil": 227015 + RD_EPOCH_JDN, "astronomical": 227014 + RD_EPOCH_JDN}
 _EPOCH_NAMES = {"civil": "civil", "friday": "civil", "astronomical": "astronomical", "thursday": "astronomical"}
 
 CYCLE_DAYS = 30 * 354 + 11
+_I30, _IM30, _ICYCLE = np.int64(30), np.int64(-30), np.int64(CYCLE_DAYS)
 #: Days from 1 Muharram to the first of each month (ceil(29.5 (m - 1))).
 MONTH_STARTS = np.array([(59 * k + 1) // 2 for k in range(12)], dtype=np.int64)
 #: Month tables: months alternate 30 and 29 days; Dhu al-Hijja has 30 in leap years.
@@ -117,6 +118,10 @@ class IslamicTabularCalendar(OptionsMixin, ArithmeticCalendar):
         index = self._row[:, None] + np.arange(MONTH_COLUMNS)[None, :]
         self._month_first_day = (self._first_day[:, None] + self._offsets[index]).ravel()
         self._month_days = self._lengths[index].ravel()
+        # The same tables month-major, by 30 * month + (y mod 30) for months 0..12, and with the
+        # first day less one, for the block writer.
+        self._day0_by_month = (self._month_first_day.reshape(30, MONTH_COLUMNS)[:, :13].T.ravel() - 1).copy()
+        self._days_by_month = self._month_days.reshape(30, MONTH_COLUMNS)[:, :13].T.ravel().copy()
 
     @property
     def description(self):  # type: ignore[override]
@@ -144,6 +149,23 @@ class IslamicTabularCalendar(OptionsMixin, ArithmeticCalendar):
         jdn += self._month_first_day[index]
         jdn += day0
         return jdn, below(day0, self._month_days[index])
+
+    def _to_jdn_block(self, out, year, month, day):
+        # Months 1..12 and days 1..30 checked by four reductions; only days 30 need the month
+        # length (29 or 30), looked up for those few dates alone.
+        if day.size == 0:
+            return True
+        if month.min() < 1 or umax(month) > 12 or day.min() < 1 or umax(day) > 30:
+            return False
+        index = np.floor_divide(year, _I30)               # 30-year cycles ...
+        np.multiply(index, _ICYCLE, out=out)
+        index -= month
+        index *= _IM30
+        index += year                                     # ... turned into 30 month + (y mod 30)
+        out += self._day0_by_month.take(index, mode="clip")     # clip: no crash on absurd years
+        out += day
+        thirtieth = np.flatnonzero(day == 30)
+        return bool(np.all(self._days_by_month.take(index[thirtieth], mode="clip") == 30))
 
     def _length_note(self, year, month):
         if month == 12:

@@ -42,7 +42,7 @@ from calendra.calendar import Calendar
 from calendra.daylib import as_int_array
 from calendra.errors import DateParseError, ParameterError
 
-from .base import BlockwiseMixin, OptionsMixin, below, floor_divmod, parse_int_option
+from .base import BlockwiseMixin, OptionsMixin, below, floor_divmod, parse_int_option, umax
 from .textforms import NameTable, normalize
 
 #: Goodman-Martinez-Thompson correlation: day number of 0.0.0.0.0 (Julian -3113-09-06).
@@ -67,6 +67,7 @@ TZOLKIN_TABLE = NameTable(TZOLKIN_NAMES, _TZOLKIN_VARIANTS)
 _HAAB_AT_CREATION = 17 * 20 + 8
 _TZOLKIN_AT_CREATION = 159   # (4 - 1 + 39 (4 - 20)) mod 260
 
+_I20, _I18 = np.int64(20), np.int64(18)
 _RADIX = (("baktun", None), ("katun", 20), ("tun", 20), ("uinal", 18), ("kin", 20))
 
 
@@ -138,6 +139,19 @@ class MayanLongCountCalendar(_Correlated):
         days *= 20
         days += kin
         return days, ok
+
+    def _to_jdn_block(self, out, baktun, katun, tun, uinal, kin):
+        # The radix checks as four reductions (instead of four element-wise masks), then the
+        # mixed-radix sum written in place into ``out``.
+        if not (umax(katun) < 20 and umax(tun) < 20 and umax(uinal) < 18 and umax(kin) < 20):
+            return False
+        np.multiply(baktun, _I20, out=out)
+        for value, radix in ((katun, _I20), (tun, _I18), (uinal, _I20)):
+            np.add(out, value, out=out)
+            np.multiply(out, radix, out=out)
+        np.add(out, kin, out=out)
+        np.add(out, np.int64(self.epoch_jdn), out=out)
+        return True
 
     def _invalid_reason(self, baktun, katun, tun, uinal, kin):
         for (name, radix), value in zip(_RADIX[1:], (katun, tun, uinal, kin)):
