@@ -5,8 +5,9 @@ chronological Julian Day Numbers (see :mod:`calendra.daylib`).  The
 algorithms count days in eras of whole leap cycles (400 Gregorian years =
 146097 days, 4 Julian years = 1461 days) from a year that begins on March 1,
 so that the leap day falls at the end of the counting year; they use only
-integer ``//`` and ``%`` on int64 arrays, are branch free, and are exact for
-any year whose day number fits in int64 (far beyond +-100000).
+integer arithmetic and a month table, are branch free, and are exact for
+any year whose day number fits in int64 (far beyond +-100000).  Blocks of
+moderate values are computed in int32, others in int64.
 
 References
 ----------
@@ -36,15 +37,18 @@ _CUMULATIVE = np.array([0, 0, 31, 59, 90, 120, 151, 181, 212, 243, 273, 304, 334
 
 #: Elements per block: the temporaries of one block stay in the processor cache.
 _BLOCK = 1 << 15
-#: Day numbers and years within this bound are computed in int32 (exact, faster).
+#: Day numbers within this bound are turned into dates in int32 (exact, faster).
 _INT32_SAFE = 400_000_000
+#: Years (and month and day fields) within this bound are turned into day numbers in int32: the
+#: day number of year 10**6 is about 3.7e8, inside int32 with room to spare.
+_INT32_SAFE_FIELDS = 1_000_000
 
 
-def _blocked(func, arrays):
+def _blocked(func, arrays, bound=_INT32_SAFE):
     """Apply ``func`` to broadcast int arrays block by block, in int32 where exact; return int64 arrays.
 
     Each block is cast to int32 (and range-checked) while it sits in the processor cache; a block
-    holding a value beyond :data:`_INT32_SAFE` is computed in int64 instead.
+    holding a value beyond ``bound`` (in absolute value) is computed in int64 instead.
     """
     arrays = np.broadcast_arrays(*arrays)
     shape = arrays[0].shape
@@ -53,7 +57,7 @@ def _blocked(func, arrays):
     outs = None
     for start in range(0, max(n, 1), _BLOCK):
         parts = [a[start:start + _BLOCK] for a in flat]
-        if all(p.size == 0 or (p.min() > -_INT32_SAFE and p.max() < _INT32_SAFE) for p in parts):
+        if all(p.size == 0 or (p.min() > -bound and p.max() < bound) for p in parts):
             parts = [p.astype(np.int32) for p in parts]
         block = func(*parts)
         if outs is None:
@@ -66,21 +70,29 @@ def _blocked(func, arrays):
     return result
 
 
+def _march_table():
+    # Day of the March-based year (0..365) -> month | day << 4 | (1 if January/February) << 9.
+    rows = []
+    for doy in range(366):
+        mp = (5 * doy + 2) // 153            # March = 0 ... February = 11
+        day = doy - (153 * mp + 2) // 5 + 1
+        late = int(mp >= 10)                 # January or February of the next civil year
+        rows.append((mp + 3 - 12 * late) | day << 4 | late << 9)
+    return np.array(rows, dtype=np.int32)
+
+
+_FROM_MARCH = _march_table()
+
+
 def _civil_from_march(doy, year):
-    # Month and day from the day of the March-based year (modifies its arguments, both temporaries).
-    mp = doy * 5
-    mp += 2
-    mp //= 153                               # March = 0 ... February = 11
-    start = mp * 153
-    start += 2
-    start //= 5
-    doy -= start
-    doy += 1                                 # day of the month
-    late = mp >= 10                          # January or February of the next civil year
-    mp += 3
-    mp -= 12 * late
-    year += late
-    return year, mp, doy
+    # Month and day from the day of the March-based year by one table lookup (modifies ``year``).
+    packed = _FROM_MARCH.take(doy, mode="clip")
+    month = packed & 15
+    day = packed >> 4
+    day &= 31
+    packed >>= 9
+    year += packed
+    return year, month, day
 
 
 def _greg_from(jdn):
@@ -109,7 +121,7 @@ _LENGTHS = np.array([0, 31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31, 0, 0, 0]
 _LENGTHS[16 + 2] = 29
 
 
-def _month_ok(y, m, d, leap):
+def _month_ok_each(m, d, leap):
     # 1 <= m <= 12 and 1 <= d <= length, with unsigned views folding each pair of bounds into one test.
     idx = m & 15
     idx |= leap.view(np.uint8).astype(idx.dtype) << 4
@@ -119,40 +131,72 @@ def _month_ok(y, m, d, leap):
     return ok
 
 
+#: Whether day d of month m exists, indexed by ``m << 5 | d`` (February 29 counted; the leap rule
+#: is applied to those dates alone).
+_EXISTS = np.zeros(13 << 5, dtype=bool)
+for _m in range(1, 13):
+    _EXISTS[(_m << 5) + 1:(_m << 5) + 1 + int(_LENGTHS[16 + _m])] = True
+del _m
+
+
+def _month_ok(y, m, d, is_leap):
+    """Validity mask of (y, m, d); ``is_leap(y)`` gives the leap mask of an array of years.
+
+    The ranges of months (1..12) and days (1..31) are checked by reductions, then one table
+    lookup by month and day decides every date but February 29, which is looked at on its own.
+    """
+    if m.size == 0 or m.min() < 1 or m.max() > 12 or d.min() < 1 or d.max() > 31:
+        return _month_ok_each(m, d, is_leap(y))
+    key = m << 5
+    key |= d
+    ok = _EXISTS.take(key)
+    feb29 = np.flatnonzero(key == (2 << 5 | 29))
+    if feb29.size:
+        ok[feb29] = is_leap(y[feb29])
+    return ok
+
+
+def _julian_leap(y):
+    return (y & 3) == 0
+
+
+def _gregorian_leap(y):
+    return ((y & 3) == 0) & ((y % 100 != 0) | (y % 400 == 0))
+
+
+#: Days from March 1 to the first of month m (index m; months 0 and 13..15 give 0, for invalid input).
+_MARCH_DAYS = np.array([0] + [(153 * ((k + 9) % 12) + 2) // 5 for k in range(1, 13)] + [0] * 3, dtype=np.int32)
+
+
+def _march_year(y, m):
+    # The March-based year (January and February count with the year before), a new array.
+    return np.subtract(y, m <= 2, dtype=y.dtype)
+
+
 def _jul_to(y, m, d):
     # Days counted in 4-year eras from a March-based year; in-place steps keep one temporary in cache.
-    yy = y - (m <= 2)
-    doy = m + 9
-    doy %= 12
-    doy *= 153
-    doy += 2
-    doy //= 5
-    doy += d
+    yy = _march_year(y, m)
     jdn = yy >> 2
     jdn *= 1461
     yy &= 3
     yy *= 365
     jdn += yy
-    jdn += doy
+    jdn += _MARCH_DAYS.take(m, mode="clip")
+    jdn += d
     jdn += _JULIAN_MARCH_EPOCH - 1
     return jdn
 
 
 def _greg_to(y, m, d):
     # Days counted in 400-year eras from a March-based year; in-place steps keep one temporary in cache.
-    yy = y - (m <= 2)
+    yy = _march_year(y, m)
     era = yy // 400
     yy -= era * 400                          # year of era, 0..399
     doe = yy * 365
     doe += yy >> 2
     doe -= yy // 100
-    doy = m + 9
-    doy %= 12
-    doy *= 153
-    doy += 2
-    doy //= 5
-    doy += d
-    doe += doy
+    doe += _MARCH_DAYS.take(m, mode="clip")
+    doe += d
     era *= 146097
     era += doe
     era += _GREGORIAN_MARCH_EPOCH - 1
@@ -160,36 +204,31 @@ def _greg_to(y, m, d):
 
 
 def _greg_to_checked(y, m, d):
-    # Validate as if every fourth year were leap (the Julian rule), then reject February 29 of the
-    # century years that are not multiples of 400: a handful of dates, looked at on their own.
-    ok = _month_ok(y, m, d, (y & 3) == 0)
-    feb29 = ok & (d == 29) & (m == 2)
-    if feb29.any():
-        idx = np.flatnonzero(feb29)
-        yf = y[idx]
-        ok[idx] = (yf % 100 != 0) | (yf % 400 == 0)
-    return _greg_to(y, m, d), ok
+    return _greg_to(y, m, d), _month_ok(y, m, d, _gregorian_leap)
 
 
 def _jul_to_checked(y, m, d):
-    return _jul_to(y, m, d), _month_ok(y, m, d, (y & 3) == 0)
+    return _jul_to(y, m, d), _month_ok(y, m, d, _julian_leap)
 
 
 def gregorian_to_jdn_checked(year, month, day):
     """Return (day numbers, validity mask) of proleptic Gregorian dates in one pass."""
-    jdn, ok = _blocked(_greg_to_checked, (as_int_array(year), as_int_array(month), as_int_array(day)))
+    jdn, ok = _blocked(_greg_to_checked, (as_int_array(year), as_int_array(month), as_int_array(day)),
+                       _INT32_SAFE_FIELDS)
     return jdn, ok.astype(bool)
 
 
 def julian_to_jdn_checked(year, month, day):
     """Return (day numbers, validity mask) of proleptic Julian dates in one pass."""
-    jdn, ok = _blocked(_jul_to_checked, (as_int_array(year), as_int_array(month), as_int_array(day)))
+    jdn, ok = _blocked(_jul_to_checked, (as_int_array(year), as_int_array(month), as_int_array(day)),
+                       _INT32_SAFE_FIELDS)
     return jdn, ok.astype(bool)
 
 
 def gregorian_to_jdn(year, month, day):
     """Return the day number of a proleptic Gregorian date (no validation)."""
-    return _blocked(lambda *f: (_greg_to(*f),), (as_int_array(year), as_int_array(month), as_int_array(day)))[0]
+    return _blocked(lambda *f: (_greg_to(*f),), (as_int_array(year), as_int_array(month), as_int_array(day)),
+                    _INT32_SAFE_FIELDS)[0]
 
 
 def gregorian_from_jdn(jdn):
@@ -199,7 +238,8 @@ def gregorian_from_jdn(jdn):
 
 def julian_to_jdn(year, month, day):
     """Return the day number of a proleptic Julian date (no validation)."""
-    return _blocked(lambda *f: (_jul_to(*f),), (as_int_array(year), as_int_array(month), as_int_array(day)))[0]
+    return _blocked(lambda *f: (_jul_to(*f),), (as_int_array(year), as_int_array(month), as_int_array(day)),
+                    _INT32_SAFE_FIELDS)[0]
 
 
 def julian_from_jdn(jdn):

@@ -122,6 +122,20 @@ def test_round_trip_beyond_100000_years(offset):
     assert int(JUL.to_jdn(*jg.julian_from_jdn(jdn))) == jdn
 
 
+@given(st.integers(min_value=-400_000_000, max_value=400_000_000), st.integers(1, 12), st.integers(1, 28))
+def test_far_years_against_convertdate(year, month, day):
+    # Reference library: convertdate (Python integers, no overflow).  Years beyond +-10**6 are
+    # computed in int64, nearer ones in int32; both must agree with it, in arrays and alone.
+    from convertdate import gregorian as cd_gregorian, julian as cd_julian
+    years = np.array([year, year % 1_000_000, -(year % 999_983)])
+    for cal, ref in ((JUL, cd_julian), (GREG, cd_gregorian)):
+        want = [int(ref.to_jd(int(y), month, day) + 0.5) for y in years]
+        assert cal.to_jdn(years, month, day).tolist() == want
+        assert int(cal.to_jdn(year, month, day)) == want[0]
+        back = cal.from_jdn(np.array(want))
+        assert back["year"].tolist() == years.tolist()
+
+
 def test_consecutive_days_are_consecutive_dates():
     # Invariant: every day of 800 years appears once and in order (monotonic, no gaps).
     jdn = np.arange(int(JUL.to_jdn(-400, 1, 1)), int(JUL.to_jdn(400, 1, 1)))
