@@ -1,4 +1,4 @@
-"""Throughput of the arithmetic calendars, next to convertdate's scalar functions.
+"""Throughput of the arithmetic and era calendars, next to convertdate's scalar functions.
 
 Each calendar converts 1,000,000 random day numbers to fields (``from_jdn``)
 and the fields back (``to_jdn``, which also validates them), one array call
@@ -33,6 +33,7 @@ from convertdate import (armenian, bahai, coptic, french_republican, hebrew, ind
 
 from calendra import julian_gregorian as jg  # noqa: E402
 from calendra_arithmetic.plugin import arithmetic_calendars  # noqa: E402
+from calendra_eras.plugin import builtin_calendars as era_calendars  # noqa: E402
 
 
 def greg(y, m=1, d=1):
@@ -68,6 +69,8 @@ PEERS = {
                          "convertdate.bahai computes the equinox Naw-Ruz (another rule)"),
     "iso-week": (iso.from_jd, iso.to_jd, (greg(1, 1, 8), HI), "convertdate via datetime: years >= 1"),
 }
+# The calendars of the eras plugin are not in convertdate: their own rates only.
+ERA_NOTE = "not in convertdate (eras plugin)"
 
 
 def best_of(fn, repeat):
@@ -130,10 +133,11 @@ def main():
     print("| calendar | span (JDN) | calendra from_jdn | calendra to_jdn | convertdate from_jd | "
           "convertdate to_jd | x from | x to | x round trip | note |")
     print("|---|---|---|---|---|---|---|---|---|---|")
-    for cal in arithmetic_calendars():
+    for cal in arithmetic_calendars() + era_calendars():
         if args.only and cal.name not in args.only:
             continue
-        peer_from, peer_to, (lo, hi), note = PEERS[cal.name]
+        span = (max(LO, cal.valid_jdn[0]), min(HI, cal.valid_jdn[1] + 1))
+        peer_from, peer_to, (lo, hi), note = PEERS.get(cal.name, (None, None, span, ERA_NOTE))
         jdn = rng.integers(lo, hi, args.n)
         t_from, fields = best_of(lambda: cal.from_jdn(jdn), args.repeat)
         values = [fields[f] for f in cal.fields]
