@@ -684,3 +684,101 @@ def test_vectorized_input_shapes():
     with pytest.raises(InvalidDateError) as info:
         egy.to_jdn([1, 1], [1, 13], [30, 6])
     assert info.value.mask.tolist() == [False, True]
+
+
+# ------------------------------------------------------------------ reign lists over a lunisolar calendar
+NEO_BABYLONIAN = """
+    [[dynasty]]
+    name = "neo-babylonian"
+    year_start = "babylonian:1 Nisannu"
+    counting = "accession-year"
+    [[dynasty.reign]]
+    ruler = "Nebuchadnezzar II"
+    key = "nebuchadnezzar"
+    accession = "julian:-0604-09-07"
+    length = 43
+    [[dynasty.reign]]
+    ruler = "Amel-Marduk"
+    length = 2
+
+    [[era]]
+    name = "seleucid-copy"
+    epoch = "babylonian:1 Nisannu 1"
+    year_start = "babylonian:new year"
+"""
+
+
+@pytest.fixture(scope="module")
+def neo_babylonian(tmp_path_factory):
+    p = _write(tmp_path_factory.mktemp("eras"), NEO_BABYLONIAN)
+    era, dyn = load_eras(p)         # eras come first, then dynasties
+    return dyn, era
+
+
+def test_reign_list_counts_years_from_the_lunisolar_new_year(neo_babylonian):
+    # The Babylonian Chronicle (ABC 5, BM 21946) has Nebuchadnezzar II take the throne on 1 Ululu of
+    # Nabopolassar's year 21, 605 BC September 7 in Parker & Dubberstein, Babylonian Chronology
+    # (from memory); under accession-year counting his year 1 begins on 1 Nisannu, 604 BC April 2
+    # (P&D, from memory).  The calendar is calendra's computed-crescent Babylonian calendar, which can
+    # differ from P&D's tables by a day in other years.
+    from calendra.pluginmanager import get_host
+    dyn, _ = neo_babylonian
+    bab = get_host().calendars.get("babylonian")
+    assert dyn.fields == ("reign", "year", "month", "leap", "day")
+    assert dyn.day_start == bab.day_start == "sunset"          # the base calendar's day boundary
+    assert int(dyn.year_start_jdn(1)) == jul(-604, 9, 7)
+    assert int(dyn.year_start_jdn(1, 1)) == jul(-603, 4, 2)
+    acc = dyn.from_jdn(jul(-604, 9, 7))
+    assert [int(acc[k]) for k in dyn.fields] == [1, 0, 6, 0, 1]          # accession year, 1 Ululu
+    # Invariant: regnal year n of the reign begins on 1 Nisannu of Babylonian year SE -293 + n.
+    for n in (1, 2, 10, 43):
+        assert int(dyn.to_jdn(1, n, 1, 0, 1)) == int(bab.to_jdn(-293 + n, 1, 0, 1))
+    # Year 1 (SE -292) has a second Addaru; its days convert both ways.
+    assert int(dyn.to_jdn(1, 1, 12, 1, 3)) == int(bab.to_jdn(-292, 12, 1, 3))
+    assert dyn.format(1, 1, 12, 1, 3, style="long") == "year 1 of Nebuchadnezzar II, Addaru II 3"
+    assert dyn.parse("year 1 of Nebuchadnezzar II, Addaru II 3") == (1, 1, 12, 1, 3)
+    assert dyn.parse(dyn.format(1, 1, 12, 1, 3)) == (1, 1, 12, 1, 3)
+    assert not bool(dyn.is_valid(1, 2, 12, 1, 3))                       # year 2 (SE -291) has none
+    with pytest.raises(InvalidDateError, match="no leap month"):
+        dyn.to_jdn(1, 2, 12, 1, 3)
+    # Amel-Marduk follows at the year start after the 43 recorded years.
+    assert int(dyn.year_start_jdn(2)) == int(bab.to_jdn(-293 + 44, 1, 0, 1))
+
+
+def test_reign_list_over_a_lunisolar_calendar_round_trips(neo_babylonian):
+    # Invariant: day -> regnal date -> day over the accession year and ten regnal years, and
+    # regnal years never decrease.
+    dyn, _ = neo_babylonian
+    days = np.arange(jul(-604, 9, 7), jul(-593, 1, 1))
+    f = dyn.from_jdn(days)
+    assert np.array_equal(dyn.to_jdn(*(f[k] for k in dyn.fields)), days)
+    assert np.all(np.diff(f["year"]) >= 0) and f["year"][0] == 0 and f["year"][-1] == 10
+    i = 1234
+    text = dyn.format(*(int(f[k][i]) for k in dyn.fields), style="long")
+    assert int(dyn.to_jdn(*dyn.parse(text))) == days[i]
+    lo, hi, free = regnal_interval(dyn, "Nebuchadnezzar II", 1, 12, 3, leap=1)
+    assert lo == hi == int(dyn.to_jdn(1, 1, 12, 1, 3)) and free is None
+
+
+def test_era_over_a_lunisolar_calendar_is_that_calendar_s_count(neo_babylonian):
+    # Invariant: an era whose epoch is 1 Nisannu of Babylonian year 1 with years from the new year
+    # numbers every day as the Babylonian calendar's own (Seleucid, spring) years do.
+    from calendra.pluginmanager import get_host
+    _, era = neo_babylonian
+    bab = get_host().calendars.get("babylonian")
+    days = np.arange(jul(-310, 1, 1), jul(-300, 1, 1))
+    f, g = era.from_jdn(days), bab.from_jdn(days)
+    assert all(np.array_equal(f[k], g[k]) for k in bab.fields)
+    assert era.parse(era.format(5, 12, 0, 29)) == (5, 12, 0, 29)
+    assert era.parse("year 5, 29 Addaru") == (5, 12, 0, 29)
+
+
+@pytest.mark.parametrize("start, what", [
+    ("babylonian:1 Addaru II", "leap month"),
+    ("babylonian:30 Nisannu", "not a day of every year"),
+    ("babylonian:14 Nowhere", "cannot read"),
+])
+def test_lunisolar_year_starts_that_do_not_recur_are_refused(tmp_path, start, what):
+    p = _write(tmp_path, NEO_BABYLONIAN.replace("babylonian:1 Nisannu", start, 1))
+    with pytest.raises(EraFileError, match=what):
+        load_eras(p)

@@ -599,6 +599,10 @@ def test_demo_record_recovers_its_true_date():
         assert ok[0], oid
     res = date_record(rec)
     best = {ev["observation"]: ev for ev in res.solutions[0].events}
+    # The reign list counts regnal years from 1 Barley of kesh-moons and begins its days at sunset,
+    # as kesh-moons does: the crescent evening is "year 7 of Ishmerat, month VIII, day 1" exactly.
+    assert best["new-crescent"]["stated_date"] == "Ishmerat, year 7, 08-01"
+    assert best["new-crescent"]["date_residual_d"] == 0
     assert best["eclipse-day-14"]["jd_tt"] == pytest.approx(e_t, abs=1e-4)
     assert best["new-crescent"]["jd_tt"] == pytest.approx(c_t, abs=1e-4)
     assert best["sirius"]["jd_tt"] == pytest.approx(s_t, abs=1e-4)

@@ -57,14 +57,18 @@ of day, if written, is ignored (eras name days).
 
 ``year_start`` is ``CAL:DAY``, a day of the year of calendar ``CAL`` written
 as a month name and day (``egyptian:1 Thoth``, ``julian:1 September``) or
-``MM-DD`` (``julian:09-01``); the era's or dynasty's dates then use that
-calendar's months and days ("month 2" of an Egyptian-year dynasty is
-Phaophi, of a Julian-year one February).  The calendar must have fields
-year, month, day with its months numbered in their order within the year
-(lunisolar calendars whose year starts with another month than month 1 will
-need an extension).  ``year_start = "anniversary"`` counts years from the
-anniversary of the epoch or of each accession; then ``calendar = "CAL"``
-names the calendar.
+``MM-DD`` (``julian:09-01``), or ``CAL:new year`` (also ``first month``: day
+1 of month 1); the era's or dynasty's dates then use that calendar's months
+and days ("month 2" of an Egyptian-year dynasty is Phaophi, of a Julian-year
+one February).  The calendar has fields year, month, day, or year, month,
+leap, day: a lunisolar calendar (``babylonian:1 Nisannu``, or a day of any
+other regular month, e.g. the spring month of a calendar whose year begins
+in autumn); the dates then have a leap field too (reign, year, month, leap,
+day), and a leap month, which not every year has, cannot start the year.
+Days before the year start in the calendar's own order of months (a leap
+month follows the month it repeats) belong to the year before.
+``year_start = "anniversary"`` counts years from the anniversary of the
+epoch or of each accession; then ``calendar = "CAL"`` names the calendar.
 
 ``counting``:
 
@@ -244,16 +248,23 @@ def _date_to_jdn(text: str, lookup: _Lookup) -> int:
 # ----------------------------------------------------------- year rules
 @dataclass
 class YearRule:
-    """When years turn: a (month, day) of calendar ``base``, or None for anniversary years."""
+    """When years turn: a day of the year of calendar ``base``, or None for anniversary years.
+
+    ``inner`` holds the fields after the year: (month, day), or (month, leap, day) for a
+    lunisolar calendar (fields year, month, leap, day).
+    """
 
     base: Calendar
-    month: int | None
-    day: int | None
+    inner: tuple | None
     text: str
 
     @property
     def anniversary(self) -> bool:
-        return self.month is None
+        return self.inner is None
+
+
+#: Words of ``year_start`` meaning day 1 of month 1 of the base calendar's year.
+NEW_YEAR_WORDS = ("new year", "first month", "first month of the year", "year start", "first day")
 
 
 def _split_prefix(text: str):
@@ -268,6 +279,54 @@ def _month_names(cal) -> list[str]:
     return names
 
 
+def _probe_years(base, n=8):
+    """``n`` consecutive years of ``base`` well inside its valid span (for rules that must hold every year)."""
+    lo, hi = base.valid_jdn
+    jdn = int(np.clip(1721424, lo + 4000, hi - 4000)) if hi - lo > 8000 else (lo + hi) // 2
+    first = int(np.asarray(base.from_jdn(jdn)[base.fields[0]]))
+    return np.arange(first, first + n)
+
+
+def _leap_field(base) -> bool:
+    """True for a lunisolar base (fields year, month, leap, day)."""
+    return len(base.fields) == 4
+
+
+def _read_lunisolar_day(base, text: str, who: str) -> tuple[int, int, int]:
+    """Read (month, leap, day) of a lunisolar ``base`` from ``14 Nisannu``, ``Addaru II 14`` or ``12L-14``.
+
+    The calendar reads its own month names (and leap months): it is given the text with a year.
+    """
+    m = re.fullmatch(r"\s*(\d{1,2})(L?)-(\d{1,2})\s*", text, flags=re.I)
+    if m:
+        return int(m.group(1)), 1 if m.group(2) else 0, int(m.group(3))
+    year = int(_probe_years(base, 1)[0])
+    try:
+        _, month, lf, day = base.parse(f"{text} {year}")
+    except DateParseError:
+        raise DateParseError(f"cannot read {text!r} as a day of a {base.label} month in {who}: write the day and "
+                             f"month, e.g. '14 {base.month_name(1)}', '{base.month_name(12, None, True)} 3', "
+                             "or MM-DD (MML-DD for a leap month)") from None
+    return int(month), int(lf), int(day)
+
+
+def _read_day_of_year(base, text: str, fail):
+    """Read a day of the year of ``base`` (``1 Thoth``, ``09-01``, ``1 Nisannu``): its inner fields."""
+    if _leap_field(base):
+        try:
+            return _read_lunisolar_day(base, text, "year_start")
+        except DateParseError as exc:
+            raise fail("year_start", str(exc)) from None
+    m = re.fullmatch(r"(\d{1,2})-(\d{1,2})", text)
+    if m:
+        return int(m.group(1)), int(m.group(2))
+    try:
+        _, month, day = Reader(text, base.name).read_ymd(month_lookup(_month_names(base)), need_year=False)
+    except DateParseError as exc:
+        raise fail("year_start", f"{text!r}: {exc} (write a month name and day, e.g. '1 Thoth', or MM-DD)")
+    return (month, day)
+
+
 def _parse_year_rule(text: str, calendar_key, lookup: _Lookup, fail) -> YearRule:
     if not isinstance(text, str):
         raise fail("year_start", f"expected text like 'julian:1 September', got {text!r}")
@@ -276,7 +335,7 @@ def _parse_year_rule(text: str, calendar_key, lookup: _Lookup, fail) -> YearRule
             raise fail("calendar", "anniversary years need the calendar whose months and days the dates use "
                                    "(calendar = \"julian\")")
         base = _base_calendar(calendar_key, lookup, fail, "calendar")
-        return YearRule(base, None, None, "anniversary")
+        return YearRule(base, None, "anniversary")
     prefix, rest = _split_prefix(text)
     if prefix is None:
         raise fail("year_start", f"{text!r} names no calendar: write e.g. 'julian:1 September' or "
@@ -284,19 +343,17 @@ def _parse_year_rule(text: str, calendar_key, lookup: _Lookup, fail) -> YearRule
     base = _base_calendar(prefix, lookup, fail, "year_start")
     if calendar_key and parse_spec(calendar_key)[0] != parse_spec(prefix)[0]:
         raise fail("calendar", f"calendar {calendar_key!r} differs from the calendar of year_start {prefix!r}")
-    m = re.fullmatch(r"(\d{1,2})-(\d{1,2})", rest)
-    if m:
-        month, day = int(m.group(1)), int(m.group(2))
+    if " ".join(rest.lower().split()) in NEW_YEAR_WORDS:
+        inner = (1, 0, 1) if _leap_field(base) else (1, 1)
     else:
-        try:
-            _, month, day = Reader(rest, base.name).read_ymd(month_lookup(_month_names(base)), need_year=False)
-        except DateParseError as exc:
-            raise fail("year_start", f"{text!r}: {exc} (write a month name and day, e.g. '1 Thoth', or MM-DD)")
+        inner = _read_day_of_year(base, rest, fail)
+    if _leap_field(base) and inner[1]:
+        raise fail("year_start", f"{text!r} is in a leap month, which not every year has")
     # The day must occur in every year: test a run of consecutive years.
-    years = np.arange(1, 9)
-    if not np.all(base.is_valid(years, np.full(8, month), np.full(8, day))):
+    years = _probe_years(base)
+    if not np.all(base.is_valid(years, *(np.full(years.size, v) for v in inner))):
         raise fail("year_start", f"{text!r} is not a day of every year of {base.label}")
-    return YearRule(base, int(month), int(day), text)
+    return YearRule(base, tuple(int(v) for v in inner), text)
 
 
 def _base_calendar(spec, lookup, fail, key):
@@ -308,59 +365,65 @@ def _base_calendar(spec, lookup, fail, key):
         raise fail(key, str(exc)) from None
     except ParameterError as exc:
         raise fail(key, str(exc)) from None
-    if len(cal.fields) != 3:
+    if tuple(cal.fields) not in (("year", "month", "day"), ("year", "month", "leap", "day")):
         raise fail(key, f"calendar {cal.label} has fields {', '.join(cal.fields)}; eras need a calendar with "
-                        "year, month and day")
+                        "year, month and day (or year, month, leap, day: a lunisolar calendar)")
     return cal
 
 
 # --------------------------------------------------------- year counting
 class _Count:
-    """Regnal or era years over a base calendar: year n begins at the year start of base year K + n."""
+    """Regnal or era years over a base calendar: year n begins at the year start of base year K + n.
 
-    def __init__(self, base, offset: int, month: int, day: int):
+    ``inner`` is the year start as the fields after the year: (month, day) or (month, leap, day).
+    Days of the base year before it (in the order of those fields) belong to the year before.
+    """
+
+    def __init__(self, base, offset: int, inner: tuple):
         self.base = base
         self.offset = int(offset)
-        self.month = int(month)
-        self.day = int(day)
+        self.inner = tuple(int(v) for v in inner)
 
-    def before(self, month, day):
-        m = as_int_array(month)
-        d = as_int_array(day)
-        return (m < self.month) | ((m == self.month) & (d < self.day))
+    def before(self, *inner):
+        lt = eq = None
+        for value, start in zip(inner, self.inner):
+            v = as_int_array(value)
+            lt = (v < start) if lt is None else lt | (eq & (v < start))
+            eq = (v == start) if eq is None else eq & (v == start)
+        return lt
 
-    def base_year(self, year, month, day):
-        return self.offset + as_int_array(year) + self.before(month, day)
+    def base_year(self, year, *inner):
+        return self.offset + as_int_array(year) + self.before(*inner)
 
-    def to_jdn(self, year, month, day):
-        return self.base._to_jdn(self.base_year(year, month, day), as_int_array(month), as_int_array(day))
+    def to_jdn(self, year, *inner):
+        return self.base._to_jdn(self.base_year(year, *inner), *(as_int_array(v) for v in inner))
 
     def year_start(self, year):
         y = as_int_array(year)
-        return self.base._to_jdn(self.offset + y, np.full(np.shape(y), self.month), np.full(np.shape(y), self.day))
+        return self.base._to_jdn(self.offset + y, *(np.full(np.shape(y), v) for v in self.inner))
 
-    def year_of(self, by, month, day):
-        return as_int_array(by) - self.before(month, day) - self.offset
+    def year_of(self, by, *inner):
+        return as_int_array(by) - self.before(*inner) - self.offset
 
 
 def _count_from_start(rule: YearRule, start_jdn: int, counting: str, fail) -> tuple[_Count, int]:
     """Return the year count of a reign or era beginning on ``start_jdn`` and its first year number."""
     base = rule.base
     f = base.from_jdn(start_jdn)
-    sy, sm, sd = (int(np.asarray(f[k])) for k in base.fields)
+    sy, *start_inner = (int(np.asarray(f[k])) for k in base.fields)
+    start_inner = tuple(start_inner)
     if rule.anniversary:
         years = np.arange(sy, sy + 8)
-        if not np.all(base.is_valid(years, np.full(8, sm), np.full(8, sd))):
-            raise fail(f"{base.format(sy, sm, sd, style='long')} does not recur every year, so anniversary "
+        if not np.all(base.is_valid(years, *(np.full(8, v) for v in start_inner))):
+            raise fail(f"{base.format(sy, *start_inner, style='long')} does not recur every year, so anniversary "
                        "years cannot be counted from it")
-        return _Count(base, sy - 1, sm, sd), 1
-    month, day = rule.month, rule.day
-    before = (sm < month) or (sm == month and sd < day)
+        return _Count(base, sy - 1, start_inner), 1
+    before = start_inner < rule.inner
     cy = sy - 1 if before else sy         # base year whose year start opens the year holding the start
-    on_start = (sm, sd) == (month, day)
+    on_start = start_inner == rule.inner
     if counting == "postdating" and not on_start:
-        return _Count(base, cy, month, day), 0
-    return _Count(base, cy - 1, month, day), 1
+        return _Count(base, cy, rule.inner), 0
+    return _Count(base, cy - 1, rule.inner), 1
 
 
 # --------------------------------------------------------------- reigns
@@ -406,8 +469,12 @@ def _slug(text: str) -> str:
 class _FileCalendar(Calendar):
     """Shared behaviour of calendars read from era files (lazy resolution of calendar names)."""
 
-    day_start = "midnight"
     path = ""
+
+    @property
+    def day_start(self):  # type: ignore[override]
+        """The day boundary of the base calendar (a reign list over a sunset-day calendar begins its days at sunset)."""
+        return self.base.day_start
 
     def _ready(self):
         if self._state is None:
@@ -419,17 +486,60 @@ class _FileCalendar(Calendar):
                 _REGISTERING = saved
         return self._state
 
+    #: Fields before those of the base calendar's year (the year itself, and the reign).
+    _lead_fields: tuple = ("year",)
+
     @property
     def base(self) -> Calendar:
         """The calendar whose months and days this era's dates use."""
         return self._ready()["rule"].base
 
     @property
+    def fields(self):  # type: ignore[override]
+        """``_lead_fields`` and the base calendar's fields after its year: month, day (or month, leap, day)."""
+        return self._lead_fields + tuple(self.base.fields[1:])
+
+    @property
+    def has_leap(self) -> bool:
+        """True when the dates carry a leap field (a lunisolar base calendar)."""
+        return _leap_field(self.base)
+
+    @property
     def month_names(self):  # type: ignore[override]
         return _month_names(self.base)
 
-    def month_name(self, month, year=None):
+    def month_name(self, month, year=None, leap=False):
+        if self.has_leap:
+            return self.base.month_name(int(month), None, bool(leap))
         return self.base.month_name(month)
+
+    def _first_inner(self) -> tuple:
+        """Month 1, day 1 as the fields after the year."""
+        return (1, 0, 1) if self.has_leap else (1, 1)
+
+    def _inner_text(self, inner) -> str:
+        """``MM-DD`` (``MML-DD`` for a leap month) of the fields after the year."""
+        if self.has_leap:
+            m, lf, d = (int(v) for v in inner)
+            return f"{m:02d}{'L' if lf else ''}-{d:02d}"
+        m, d = (int(v) for v in inner)
+        return f"{m:02d}-{d:02d}"
+
+    def _inner_words(self, inner) -> str:
+        """``Phaophi 14`` / ``Addaru II 14`` of the fields after the year."""
+        if self.has_leap:
+            m, lf, d = (int(v) for v in inner)
+            return f"{self.month_name(m, None, lf)} {d}"
+        m, d = (int(v) for v in inner)
+        return f"{self.month_name(m)} {d}"
+
+    def _read_inner(self, reader) -> tuple:
+        """Read the month and day (and leap) left in ``reader``."""
+        if self.has_leap:
+            rest = " ".join(t.raw for t in reader.tokens)
+            return _read_lunisolar_day(self.base, rest, self.name)
+        _, m, d = reader.read_ymd(self._month_reader(), need_year=False)
+        return int(m), int(d)
 
     def _month_reader(self):
         base = self.base
@@ -450,8 +560,6 @@ class EraCalendar(_FileCalendar):
     Years before year 1 continue as 0, -1, ... (proleptic); see the module
     docstring for the counting rules.
     """
-
-    fields = ("year", "month", "day")
 
     def __init__(self, data: dict, path: str, where: str, lookup: _Lookup | None = None):
         self.path = str(path)
@@ -512,43 +620,46 @@ class EraCalendar(_FileCalendar):
     def months_in_year(self, year):
         return self.base.months_in_year(as_int_array(year))
 
-    def month_length(self, year, month):
+    def month_length(self, year, *month):
+        """Days of a month (fields month, or month and leap) of ``year`` of the era."""
         c = self._ready()["count"]
-        return self.base.month_length(c.base_year(year, month, 1), month)
+        return self.base.month_length(c.base_year(year, *month, 1), *month)
 
-    def is_valid(self, year, month, day):
+    def is_valid(self, year, *inner):
         c = self._ready()["count"]
-        return np.asarray(self.base.is_valid(c.base_year(year, month, day), month, day), dtype=bool)
+        return np.asarray(self.base.is_valid(c.base_year(year, *inner), *inner), dtype=bool)
 
-    def _invalid_reason(self, year, month, day):
+    def _invalid_reason(self, year, *inner):
         c = self._ready()["count"]
-        by = int(c.base_year(year, month, day))
-        reason = self.base._invalid_reason(by, month, day) or "date does not exist"
+        by = int(c.base_year(year, *inner))
+        reason = self.base._invalid_reason(by, *inner) or "date does not exist"
         return f"year {year} of the {self.title} (= {self.base.label} year {by}): {reason}"
 
-    def _to_jdn(self, year, month, day):
-        return self._ready()["count"].to_jdn(year, month, day)
+    def _to_jdn(self, year, *inner):
+        return self._ready()["count"].to_jdn(year, *inner)
 
     def _from_jdn(self, jdn):
         c = self._ready()["count"]
         f = self.base.from_jdn(jdn)
-        by, m, d = (f[k] for k in self.base.fields)
-        return c.year_of(by, m, d), m, d
+        by, *inner = (f[k] for k in self.base.fields)
+        return (c.year_of(by, *inner), *inner)
 
     def year_start_jdn(self, year):
         return self._ready()["count"].year_start(year)
 
-    def format(self, year, month, day, style: str = "iso") -> str:
-        y, m, d = int(year), int(month), int(day)
+    def format(self, year, *inner, style: str = "iso") -> str:
+        y = int(year)
         if style == "iso":
             head = f"{self.abbreviation} " if self.abbreviation else "year "
-            return f"{head}{iso_year(y)}-{m:02d}-{d:02d}"
+            return f"{head}{iso_year(y)}-{self._inner_text(inner)}"
         if style == "long":
-            return f"year {y} of the {self.title}, {self.month_name(m)} {d}"
+            return f"year {y} of the {self.title}, {self._inner_words(inner)}"
         raise ParameterError(f"unknown date style {style!r} (iso, long)")
 
     def parse(self, text: str):
         s = _remove_phrase(text, self.title)
+        if self.has_leap:
+            return self._parse_lunisolar(s)
         reader = Reader(s, self.name)
         year = None
         if self.abbreviation:
@@ -573,6 +684,23 @@ class EraCalendar(_FileCalendar):
         y, m, d = reader.read_ymd(self._month_reader(), year=year)
         return int(y), int(m), int(d)
 
+    def _parse_lunisolar(self, s: str):
+        # ``AFV 5-08L-14`` / ``year 5-08-14``, or the year (``AFV 5``, ``year 5``) and a day of a month.
+        heads = ["year"] + ([re.escape(self.abbreviation.replace(".", ""))] if self.abbreviation else [])
+        plain = s.replace(".", "") if self.abbreviation else s
+        m = re.fullmatch(r"\s*(?:" + "|".join(heads) + r")\s+([+-]?\d+)-(\d{1,2})(L?)-(\d{1,2})\s*", plain,
+                         flags=re.I)
+        if m:
+            return int(m.group(1)), int(m.group(2)), 1 if m.group(3) else 0, int(m.group(4))
+        m = re.search(r"(?i)(?<!\w)(?:" + "|".join(heads) + r")\s+([+-]?\d+)(?!\w)", plain)
+        if not m:
+            raise DateParseError(f"cannot read {s.strip()!r} as a {self.name} date: give the year "
+                                 f"('year 5, 14 {self.base.month_name(1)}'" +
+                                 (f" or '{self.abbreviation} 5 ...'" if self.abbreviation else "") + ")")
+        rest = (plain[:m.start()] + " " + plain[m.end():]).replace(",", " ")
+        month, lf, day = _read_lunisolar_day(self.base, rest, self.name)
+        return int(m.group(1)), month, lf, day
+
 
 class DynastyCalendar(_FileCalendar):
     """A list of reigns read from a file: fields reign (1-based, in file order), year, month, day.
@@ -581,7 +709,7 @@ class DynastyCalendar(_FileCalendar):
     date text or a day number) fixes it within its bounds.
     """
 
-    fields = ("reign", "year", "month", "day")
+    _lead_fields = ("reign", "year")
 
     def __init__(self, data: dict, path: str, where: str, lookup: _Lookup | None = None, fixes=None):
         self.path = str(path)
@@ -630,7 +758,7 @@ class DynastyCalendar(_FileCalendar):
             elif sp.accession_year is not None:
                 if rule.anniversary:
                     raise rfail("accession_year", "anniversary years need the accession day, not only the year")
-                r.count = _Count(rule.base, sp.accession_year - 1, rule.month, rule.day)
+                r.count = _Count(rule.base, sp.accession_year - 1, rule.inner)
                 r.first_year = 1
                 try:
                     r.start = int(r.count.year_start(1))
@@ -772,35 +900,37 @@ class DynastyCalendar(_FileCalendar):
     def months_in_year(self, year):
         return self.base.months_in_year(as_int_array(year))
 
-    def month_length(self, reign, year, month):
-        """Days of ``month`` of regnal ``year`` of ``reign`` (vectorized; 0 where unknown)."""
-        r, y, m = np.broadcast_arrays(as_int_array(reign), as_int_array(year), as_int_array(month))
+    def month_length(self, reign, year, *month):
+        """Days of a month (fields month, or month and leap) of regnal ``year`` of ``reign`` (0 where unknown)."""
+        r, y, *mf = np.broadcast_arrays(as_int_array(reign), as_int_array(year), *(as_int_array(v) for v in month))
         out = np.zeros(r.shape, dtype=np.int64)
         for rg in self._ready()["reigns"]:
             sel = r == rg.index + 1
             if rg.resolved and np.any(sel):
-                out[sel] = self.base.month_length(rg.count.base_year(y[sel], m[sel], 1), m[sel])
+                ms = [v[sel] for v in mf]
+                out[sel] = self.base.month_length(rg.count.base_year(y[sel], *ms, 1), *ms)
         return out
 
-    def _reign_arrays(self, reign, year, month, day):
-        return np.broadcast_arrays(*(as_int_array(v) for v in (reign, year, month, day)))
+    def _reign_arrays(self, reign, year, *inner):
+        return np.broadcast_arrays(*(as_int_array(v) for v in (reign, year) + tuple(inner)))
 
-    def is_valid(self, reign, year, month, day):
-        r, y, m, d = self._reign_arrays(reign, year, month, day)
+    def is_valid(self, reign, year, *inner):
+        r, y, *inn = self._reign_arrays(reign, year, *inner)
         ok = np.zeros(r.shape, dtype=bool)
+        first = self._first_inner()
         for rg in self._ready()["reigns"]:
             sel = r == rg.index + 1
             if not rg.resolved or not np.any(sel):
                 continue
-            ys, ms, ds = y[sel], m[sel], d[sel]
-            good = np.asarray(self.base.is_valid(rg.count.base_year(ys, ms, ds), ms, ds), dtype=bool)
+            ys, parts = y[sel], [v[sel] for v in inn]
+            good = np.asarray(self.base.is_valid(rg.count.base_year(ys, *parts), *parts), dtype=bool)
             good &= ys >= rg.first_year
-            j = rg.count.to_jdn(ys, np.where(good, ms, 1), np.where(good, ds, 1))
+            j = rg.count.to_jdn(ys, *(np.where(good, v, f) for v, f in zip(parts, first)))
             good &= (j >= rg.start) & (j < rg.upper)
             ok[sel] = good
         return ok
 
-    def _invalid_reason(self, reign, year, month, day):
+    def _invalid_reason(self, reign, year, *inner):
         s = self._ready()
         if not 1 <= reign <= len(self.specs):
             return f"reign {reign} does not exist in {self.name} (reigns 1..{len(self.specs)}: {', '.join(self.rulers())})"
@@ -819,67 +949,73 @@ class DynastyCalendar(_FileCalendar):
                 return (f"{who} has no year {year}: {self.name} counts non-accession years (year 1 begins at the "
                         "accession)" if year == 0 else f"{who} has no year {year} (regnal years start at 1)")
             return f"{who} has no year {year}: regnal years start with the accession year 0"
-        by = int(rg.count.base_year(year, month, day))
-        reason = self.base._invalid_reason(by, month, day)
-        if reason or not bool(np.asarray(self.base.is_valid(by, month, day))):
+        by = int(rg.count.base_year(year, *inner))
+        reason = self.base._invalid_reason(by, *inner)
+        if reason or not bool(np.asarray(self.base.is_valid(by, *inner))):
             return f"year {year} of {who} (= {self.base.label} year {by}): {reason or 'date does not exist'}"
-        j = int(rg.count.to_jdn(year, month, day))
+        j = int(rg.count.to_jdn(year, *inner))
         if j < rg.start:
-            return (f"{self._text(reign, year, month, day)} is before the accession of {who} "
+            return (f"{self._text(reign, year, *inner)} is before the accession of {who} "
                     f"({self._jtext(rg.start)}, day {rg.start})")
         if j >= rg.upper:
             length = f"{rg.spec.length} recorded years" if rg.spec.length else "no recorded length"
-            return (f"{self._text(reign, year, month, day)} is after the reign of {who} ({length}; the days it "
+            return (f"{self._text(reign, year, *inner)} is after the reign of {who} ({length}; the days it "
                     f"names end on {self._jtext(rg.upper - 1)})")
         return None
 
-    def _to_jdn(self, reign, year, month, day):
-        r, y, m, d = self._reign_arrays(reign, year, month, day)
+    def _to_jdn(self, reign, year, *inner):
+        r, y, *inn = self._reign_arrays(reign, year, *inner)
         out = np.zeros(r.shape, dtype=np.int64)
         for rg in self._ready()["reigns"]:
             sel = r == rg.index + 1
             if rg.resolved and np.any(sel):
-                out[sel] = rg.count.to_jdn(y[sel], m[sel], d[sel])
+                out[sel] = rg.count.to_jdn(y[sel], *(v[sel] for v in inn))
         return out
 
     def _from_jdn(self, jdn):
         s = self._ready()
         j = as_int_array(jdn)
         f = self.base.from_jdn(j)
-        by, m, d = (f[k] for k in self.base.fields)
+        by, *inner = (as_int_array(f[k]) for k in self.base.fields)
         k = np.clip(np.searchsorted(s["starts"], j, side="right") - 1, 0, max(len(s["starts"]) - 1, 0))
         idx = s["order"][k]
         reigns = s["reigns"]
         offset = np.array([r.count.offset if r.resolved else 0 for r in reigns], dtype=np.int64)[idx]
-        mon = np.array([r.count.month if r.resolved else 1 for r in reigns], dtype=np.int64)[idx]
-        day = np.array([r.count.day if r.resolved else 1 for r in reigns], dtype=np.int64)[idx]
-        before = (m < mon) | ((m == mon) & (d < day))
+        first = self._first_inner()
+        starts = np.array([r.count.inner if r.resolved else first for r in reigns], dtype=np.int64)[idx]
+        # Days before the reign's year start (in the order of the fields after the year) belong to the
+        # year before.
+        before = eq = None
+        for col, value in enumerate(inner):
+            start = starts[..., col]
+            before = (value < start) if before is None else before | (eq & (value < start))
+            eq = (value == start) if eq is None else eq & (value == start)
         year = by - before - offset
-        return idx + 1, year, m, d
+        return (idx + 1, year, *inner)
 
     def year_start_jdn(self, reign, year=None):
         """Day number of the first day of regnal ``year`` of ``reign`` (default: the reign's first day)."""
         s = self._ready()
         rg = s["reigns"][self.reign_index(int(reign)) - 1]
         if not rg.resolved:
-            raise InvalidDateError(self._invalid_reason(rg.index + 1, 1, 1, 1), self.name)
+            raise InvalidDateError(self._invalid_reason(rg.index + 1, 1, *self._first_inner()), self.name)
         if year is None:
             return np.int64(rg.start)
         return np.maximum(rg.count.year_start(year), rg.start)
 
     # ------------------------------------------------------------- text
-    def _text(self, reign, year, month, day) -> str:
+    def _text(self, reign, year, *inner) -> str:
         who = self.specs[reign - 1].ruler
         yr = "accession year" if year == 0 else f"year {year}"
-        return f"{yr} of {who}, {self.month_name(month)} {day}"
+        return f"{yr} of {who}, {self._inner_words(inner)}"
 
-    def format(self, reign, year, month, day, style: str = "iso") -> str:
-        r, y, m, d = (int(v) for v in (reign, year, month, day))
+    def format(self, reign, year, *inner, style: str = "iso") -> str:
+        r, y = int(reign), int(year)
         who = self.specs[r - 1].ruler
         if style == "iso":
-            return f"{who}, year {y}, {m:02d}-{d:02d}"
+            return f"{who}, year {y}, {self._inner_text(inner)}"
         if style == "long":
-            text = self._text(r, y, m, d)
+            text = self._text(r, y, *inner)
             length = self.specs[r - 1].length
             if length is not None and y > length:
                 text += f" (beyond the recorded {length} years)"
@@ -902,12 +1038,21 @@ class DynastyCalendar(_FileCalendar):
             raise DateParseError(f"cannot read {text!r} as a {self.name} date: no ruler named "
                                  f"(rulers: {', '.join(self.rulers())})")
         s = re.sub(r"(?i)\baccession\s+year\b", " year 0 ", s)
+        leap_form = None
+        if self.has_leap:           # ``12L-03`` (a day of a leap month) is read before the words
+            m = re.search(r"(?<![\w-])(\d{1,2})L-(\d{1,2})(?!\w)", s, flags=re.I)
+            if m:
+                leap_form = (int(m.group(1)), 1, int(m.group(2)))
+                s = s[:m.start()] + " " + s[m.end():]
         reader = Reader(s, self.name, fillers=("of", "the", "in", "on", "and", "regnal", "reign"))
         year = reader.take_keyword_number(("year", "yr"))
         if year is None:
             raise reader.fail("give the regnal year ('year 7 of ...' or 'accession year of ...')")
-        _, m, d = reader.read_ymd(self._month_reader(), need_year=False)
-        return found, int(year), int(m), int(d)
+        if leap_form is not None:
+            if reader.tokens:
+                raise reader.fail(f"unexpected {reader.tokens[0].raw!r}")
+            return (found, int(year)) + leap_form
+        return (found, int(year)) + tuple(self._read_inner(reader))
 
 
 def _remove_phrase(text: str, phrase: str) -> str:
@@ -992,13 +1137,16 @@ def _reign_specs(data, path, where) -> list[ReignSpec]:
     return specs
 
 
-def load_eras(path, _registering: bool = False) -> list[Calendar]:
+def load_eras(path, _registering: bool = False, calendars=()) -> list[Calendar]:
     """Read an era file and return its eras and dynasties as calendars.
 
     Parameters
     ----------
     path : str or path-like
         A TOML file in the format of the module docstring.
+    calendars : sequence of Calendar, optional
+        Further calendars the file may name (e.g. lunisolar calendars read
+        from a file of their own), looked up before the installed ones.
 
     Returns
     -------
@@ -1029,7 +1177,7 @@ def load_eras(path, _registering: bool = False) -> list[Calendar]:
         raise EraFileError(path, "top level", "no [[era]] or [[dynasty]] tables")
     saved, _REGISTERING = _REGISTERING, _registering
     try:
-        lookup = _Lookup()
+        lookup = _Lookup(extra=calendars)
         out: list[Calendar] = []
         names: set[str] = set()
         for kind, cls, allowed, required in (("era", EraCalendar, _ERA_KEYS, ("name", "epoch", "year_start")),
@@ -1085,7 +1233,7 @@ def calendars_from_environment(environ=None) -> tuple[list, list[str]]:
 
 
 def regnal_interval(calendar, ruler, year: int, month: int | None = None, day: int | None = None,
-                    host=None) -> RegnalInterval:
+                    host=None, leap: int = 0) -> RegnalInterval:
     """Return the day numbers on which "year ``year`` of ``ruler``" (or a day of it) can fall.
 
     For a reign whose start is fixed the interval is exact: the days of the
@@ -1105,6 +1253,8 @@ def regnal_interval(calendar, ruler, year: int, month: int | None = None, day: i
         Regnal year (0 = accession year under accession-year counting).
     month, day : int, optional
         A day of that year in the dynasty's calendar.
+    leap : int, optional
+        1 for a day of a leap month (dynasties over a lunisolar calendar only).
 
     Returns
     -------
@@ -1119,6 +1269,8 @@ def regnal_interval(calendar, ruler, year: int, month: int | None = None, day: i
         raise ParameterError(f"regnal_interval needs a dynasty calendar, not {getattr(calendar, 'label', calendar)!r}")
     if (month is None) != (day is None):
         raise ParameterError("give both month and day, or neither")
+    if leap and not calendar.has_leap:
+        raise ParameterError(f"{calendar.name} has no leap months (its calendar is {calendar.base.label})")
     reign = calendar.reign_index(ruler)
     rg = calendar._ready()["reigns"][reign - 1]
     root = rg.root
@@ -1132,17 +1284,18 @@ def regnal_interval(calendar, ruler, year: int, month: int | None = None, day: i
     for cal in variants:
         r = cal._ready()["reigns"][reign - 1]
         if not r.resolved:
-            raise InvalidDateError(cal._invalid_reason(reign, year, 1, 1), cal.name)
+            raise InvalidDateError(cal._invalid_reason(reign, year, *cal._first_inner()), cal.name)
         if year < r.first_year:
-            raise InvalidDateError(cal._invalid_reason(reign, year, 1, 1), cal.name)
+            raise InvalidDateError(cal._invalid_reason(reign, year, *cal._first_inner()), cal.name)
         if month is None:
             first = max(int(r.count.year_start(year)), r.start)
             last = int(r.count.year_start(year + 1)) - 1
         else:
-            by = int(r.count.base_year(year, month, day))
-            if not bool(np.asarray(cal.base.is_valid(by, month, day))):
-                raise InvalidDateError(cal._invalid_reason(reign, year, month, day), cal.name)
-            first = last = int(r.count.to_jdn(year, month, day))
+            inner = (month, leap, day) if cal.has_leap else (month, day)
+            by = int(r.count.base_year(year, *inner))
+            if not bool(np.asarray(cal.base.is_valid(by, *inner))):
+                raise InvalidDateError(cal._invalid_reason(reign, year, *inner), cal.name)
+            first = last = int(r.count.to_jdn(year, *inner))
         lo = first if lo is None else min(lo, first)
         hi = last if hi is None else max(hi, last)
     return RegnalInterval(int(lo), int(hi), rg.root if root is not None else None)

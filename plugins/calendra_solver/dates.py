@@ -40,16 +40,18 @@ class CalendarBook:
     def __init__(self, host, era_files=(), fail=None, lunisolar_files=()):
         self.host = host
         self.local = {}
+        lunisolar = []
         for path in lunisolar_files:
             for cal in _load_lunisolar(path, fail):
                 self._add(cal)
+                lunisolar.append(cal)
         for path in era_files:
             try:
                 from calendra_eras.user_eras import load_eras
             except ImportError:  # pragma: no cover - the eras plugin is part of calendra
                 raise fail("[record], key 'eras'", "era files need the calendra_eras plugin") from None
             try:
-                cals = load_eras(path)
+                cals = load_eras(path, calendars=lunisolar)   # a reign list may count years in them
             except CalendraError as exc:
                 raise fail("[record], key 'eras'", str(exc)) from None
             for cal in cals:

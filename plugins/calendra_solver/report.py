@@ -45,6 +45,10 @@ def event_rows(solutions) -> list:
             rows.append({"rank": s.rank, "observation": ev["observation"], "kind": ev.get("kind", "-"),
                          "date_ut": ev.get("date_ut", "(fails)"), "time_ut": ev.get("time_ut", ""),
                          "local": ev.get("local", ""), "stated_date": ev.get("stated_date", ""),
+                         "stated_calendar": ev.get("stated_calendar", ""),
+                         # the calendar's name (its epoch options are in the solution's header)
+                         "stated": (f"{ev['stated_calendar'].split('[')[0]}: {ev.get('stated_date', '')}"
+                                    if ev.get("stated_calendar") else ev.get("stated_date", "")),
                          "residuals": _resid_text(ev) if ev.get("holds") else "fails",
                          "margin": _margin_text(ev), "jd_tt": ev.get("jd_tt"), "jd_ut": ev.get("jd_ut"),
                          "score": round(s.score, 3), "delta_t": s.fragility, "holds": ev.get("holds")})
@@ -75,7 +79,7 @@ def render_text(result) -> str:
     rec = result.record
     out = [f"{rec.title}: {result.n_solutions} solution(s) in {rec.window[0]}..{rec.window[1]}"
            f" (record {rec.path})", ""]
-    cols = ["observation", "kind", "date_ut", "time_ut", "local", "stated_date", "residuals", "margin"]
+    cols = ["observation", "kind", "date_ut", "time_ut", "local", "stated", "residuals", "margin"]
     heads = ["observation", "event", "date (UT)", "UT", "local civil time", "stated calendar date",
              "residuals", "margin"]
     blocks = [(s, False) for s in result.solutions] or [(s, True) for s in result.partial]
@@ -146,7 +150,8 @@ def render(result, fmt: str) -> str:
     if fmt == "csv":
         rows = event_rows(result.solutions or result.partial)
         return render_csv(rows, ["rank", "score", "delta_t", "observation", "kind", "jd_tt", "jd_ut", "date_ut",
-                                 "time_ut", "local", "stated_date", "residuals", "margin", "holds"])
+                                 "time_ut", "local", "stated_calendar", "stated_date", "residuals", "margin",
+                                 "holds"])
     return render_text(result)
 
 
