@@ -13,7 +13,7 @@ import sys
 
 import click
 
-from .errors import CalendraError
+from .errors import CalendraError, ParameterError
 
 FORMAT_OPTION = click.option("--format", "fmt", type=click.Choice(["table", "json", "csv"]), default="table",
                              show_default=True, help="Output format.")
@@ -211,24 +211,33 @@ def _report_problems(host):
 
 
 # ------------------------------------------------------------------- calendar
-@main.command("calendar")
+@main.command("calendar", context_settings=DATE_ARGS)
 @click.argument("calendar_name", metavar="CAL")
 @click.argument("year", type=int)
 @click.option("--month", type=int, default=None, help="Print a grid of this month with weekdays.")
+@click.option("--ruler", default=None, help="For a reign list: the ruler (name, key or reign number) whose "
+                                            "regnal YEAR to print.")
 @FORMAT_OPTION
-def calendar_command(calendar_name, year, month, fmt):
+def calendar_command(calendar_name, year, month, ruler, fmt):
     """Print the months of YEAR in calendar CAL, with the JD and western date of each month start.
 
-    YEAR is the calendar's own year number (astronomical for julian and gregorian).
+    YEAR is the calendar's own year number (astronomical for julian and gregorian; a negative year
+    needs no quoting: calendra calendar babylonian -292); for a reign list, the regnal year of
+    --ruler.
     """
     from .yeartable import month_grid, year_table
     from .output import render_csv, render_json, render_table
 
     cal = _host().calendars.get(calendar_name)
+    lead = ()
+    if ruler is not None:
+        if not hasattr(cal, "reign_index"):
+            raise ParameterError(f"calendar {cal.label} is not a reign list: --ruler needs one")
+        lead = (cal.reign_index(int(ruler) if ruler.strip().isdigit() else ruler),)
     if month is not None:
-        _emit(month_grid(cal, year, month, _host()))
+        _emit(month_grid(cal, year, month, _host(), lead))
         return
-    rows = year_table(cal, year, _host())
+    rows = year_table(cal, year, _host(), lead)
     cols = ["month", "name", "days", "first_jd", "first_western", "first_weekday"]
     if fmt == "json":
         _emit(render_json({"calendar": cal.label, "year": year, "months": rows}))
@@ -237,7 +246,8 @@ def calendar_command(calendar_name, year, month, fmt):
     else:
         _emit(render_table(rows, cols, ["month", "name", "days", "JD of 1st (0h)", "1st in western calendar",
                                         "weekday"],
-                           title=f"{cal.label} year {year} ({cal.year_numbering or 'own numbering'}; "
+                           title=f"{cal.label} {'year' if not lead else cal.rulers()[lead[0] - 1] + ', year'} {year} "
+                                 f"({cal.year_numbering or 'own numbering'}; "
                                  f"day begins at {cal.day_start})"))
 
 

@@ -120,3 +120,24 @@ def test_year_table_keeps_a_leap_month_apart():
     assert code == 0 and len(months) == 13
     assert [m["month"] for m in months[:3]] == [1, 2, 2]
     assert "leap" in months[2]["name"] and all(m["days"] in (29, 30) for m in months)
+
+
+def test_year_table_of_a_negative_year_and_of_a_regnal_year(fresh_host, monkeypatch):
+    # A negative year needs no "--".  Babylonian SE -292 (604/603 BC) has a second Addaru; its
+    # 1 Nisannu is 604 BC April 2 (Parker & Dubberstein, Babylonian Chronology; from memory).
+    code, out, _ = run("calendar", "babylonian", "-292", "--format", "json")
+    months = json.loads(out)["months"]
+    assert code == 0 and len(months) == 13
+    assert months[0]["name"] == "Nisannu" and months[0]["first_western"] == "-0603-04-02"
+    assert months[-1]["name"] == "Addaru II"
+    # A reign list: the regnal year of --ruler (the demo's kings count years from 1 Barley).
+    monkeypatch.setenv("CALENDRA_LUNISOLAR", "demo_events/invented_lunisolar_kesh.toml")
+    monkeypatch.setenv("CALENDRA_ERAS", "demo_events/kesh_ammat_kings.toml")
+    pluginmanager.set_host(None)
+    code, out, _ = run("calendar", "kesh-ammat-kings[ammurapi=julian:-0797-10-20]", "7", "--ruler", "Ishmerat",
+                       "--format", "json")
+    months = json.loads(out)["months"]
+    assert code == 0 and months[0]["name"] == "Barley" and months[0]["first_western"] == "-0778-04-17"
+    assert len(months) == 12 and months[-1]["name"] == "Lambing"          # to the next 1 Barley
+    result = CliRunner().invoke(main, ["calendar", "kesh-ammat-kings", "7"])
+    assert result.exit_code == 2 and "--ruler" in result.output

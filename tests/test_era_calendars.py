@@ -782,3 +782,16 @@ def test_lunisolar_year_starts_that_do_not_recur_are_refused(tmp_path, start, wh
     p = _write(tmp_path, NEO_BABYLONIAN.replace("babylonian:1 Nisannu", start, 1))
     with pytest.raises(EraFileError, match=what):
         load_eras(p)
+
+
+def test_year_table_of_an_accession_year_starts_at_the_accession(neo_babylonian):
+    # Invariant: the accession year (year 0) runs from the accession day (1 Ululu) to the next
+    # 1 Nisannu; year 1 is the whole Babylonian year SE -292 with its second Addaru.
+    from calendra.pluginmanager import get_host
+    from calendra.yeartable import year_table
+    dyn, _ = neo_babylonian
+    rows = year_table(dyn, 0, get_host(), lead=(1,))
+    assert rows[0]["name"] == "Ululu" and rows[0]["first_jd"] == jul(-604, 9, 7) - 0.5
+    assert [r["name"] for r in rows][-1] == "Addaru" and len(rows) == 7
+    rows = year_table(dyn, 1, get_host(), lead=(1,))
+    assert len(rows) == 13 and rows[-1]["name"] == "Addaru II" and sum(r["days"] for r in rows) in (383, 384, 385)
