@@ -434,3 +434,20 @@ def test_lunisolar_year_command():
     assert res.exit_code == 0, res.output
     assert res.output.splitlines()[0].startswith("month,name,evening_gregorian")
     assert len(res.output.strip().splitlines()) == 13
+
+
+def test_long_dates_of_leap_months_read_back(babylonian):
+    # Invariant: fields -> long text -> fields, for every day of years with a leap month, in the
+    # Babylonian calendar ("Addaru II") and in a TOML calendar naming its leap month "Second {name}".
+    from calendra_lunisolar.generic import load_lunisolar
+
+    moons, _ = load_lunisolar(DEMO)
+    for cal, years in ((babylonian, (-292, -289)), (moons, (-700, -695))):
+        j = np.arange(int(cal.year_start_jdn(years[0])), int(cal.year_start_jdn(years[1])))
+        f = cal.from_jdn(j)
+        rows = np.stack([np.asarray(f[k]) for k in cal.fields], axis=1)
+        assert rows[:, 2].any()                                   # some leap-month days among them
+        for row in rows[rows[:, 2] == 1][::7].tolist() + rows[::97].tolist():
+            text = cal.format(*row, style="long")
+            assert tuple(cal.parse(text)) == tuple(row), text
+    assert babylonian.parse("1 Addaru II -292") == (-292, 12, 1, 1)

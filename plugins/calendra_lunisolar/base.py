@@ -420,11 +420,15 @@ class LunationCalendar(Calendar):
                 idx = self._match_month(phrase)
                 if idx is None:
                     continue
-                rest = words[:i] + words[j:]
+                before, after = words[:i], words[j:]
                 leap = 0
-                if rest and rest[0].upper() in ("II", "2ND"):
-                    rest = rest[1:]
-                    leap = 1
+                if after and after[0].upper() in ("II", "2ND"):         # "Addaru II"
+                    after, leap = after[1:], 1
+                else:                                                    # a leap name like "Second {name}"
+                    lead = getattr(self, "leap_name", "{name} II").split("{name}")[0].split()
+                    if lead and [w.lower() for w in before[-len(lead):]] == [w.lower() for w in lead]:
+                        before, leap = before[:-len(lead)], 1
+                rest = before + after
                 nums = [w for w in rest if re.fullmatch(r"[+-]?\d+", w)]
                 others = [w for w in rest if not re.fullmatch(r"[+-]?\d+", w) and w.upper() not in ("SE", "AH")]
                 if len(nums) == 2 and not others:
