@@ -31,7 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import DateParseError, ParameterError
+from .errors import DateParseError, DateRangeError, ParameterError
 
 TIME_SCALES = {"ut": "UT", "ut1": "UT", "utc": "UT", "gmt": "UT", "tt": "TT", "td": "TT", "tdt": "TT",
                "et": "TT", "tdb": "TT", "lmt": "LMT", "lat": "LAT"}
@@ -214,6 +214,11 @@ class ResolvedDates:
         return len(self.specs)
 
 
+#: Largest magnitude of a date field read from text: a year of 10**9 still has a day number far inside
+#: int64 in every calendar's arithmetic (the Hebrew molad in parts, the Maya baktun, ...).
+FIELD_LIMIT = 1_000_000_000
+
+
 def resolve_dates(specs, host=None, deltat=None, site=None, reform=None) -> ResolvedDates:
     """Turn :class:`DateSpec` objects into Julian Days in UT and TT, as one array job.
 
@@ -256,6 +261,10 @@ def resolve_dates(specs, host=None, deltat=None, site=None, reform=None) -> Reso
         if sp.jd is not None:
             jd_local[i] = sp.jd
         else:
+            big = [(name, v) for name, v in zip(cal.fields, sp.fields) if abs(int(v)) > FIELD_LIMIT]
+            if big:
+                raise ParameterError(f"{sp.text!r}: {big[0][0]} {big[0][1]} is beyond what calendra converts "
+                                     f"(date fields within +-{FIELD_LIMIT:,}; integer day counts would overflow)")
             groups.setdefault((id(cal), len(sp.fields)), (cal, []))[1].append(i)
     for cal, idx in groups.values():
         idx = np.array(idx)
@@ -265,6 +274,13 @@ def resolve_dates(specs, host=None, deltat=None, site=None, reform=None) -> Reso
         except InvalidDateError as exc:
             bad = idx[np.atleast_1d(exc.mask)][0] if exc.mask is not None and np.ndim(exc.mask) else idx[0]
             raise InvalidDateError(f"{specs[bad].text!r}: {exc}", exc.calendar, exc.mask) from None
+        lo, hi = cal.valid_jdn                  # +-3e9 days (about 8 million years) for an unbounded one
+        outside = (np.asarray(days) < lo) | (np.asarray(days) > hi)
+        if np.any(outside):
+            k = int(np.flatnonzero(np.atleast_1d(outside))[0])
+            raise DateRangeError(f"{specs[idx[k]].text!r}: {cal.label} converts day numbers {lo}..{hi} (JD "
+                                 f"{lo - 0.5}..{hi + 0.5}); this date is day {int(np.atleast_1d(days)[k])}",
+                                 lo - 0.5, hi + 0.5, outside)
         jdn[idx] = days
         frac = np.array([specs[i].fraction or 0.0 for i in idx])
         jd_local[idx] = days - 0.5 + frac

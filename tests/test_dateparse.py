@@ -88,3 +88,19 @@ def test_bad_input_has_a_specific_message(host, text, error, match):
 def test_local_time_needs_a_site(host):
     with pytest.raises(ParameterError, match="needs a site"):
         resolve_dates([parse_date("2000-01-01 12:00 LMT", host)], host)
+
+
+@pytest.mark.parametrize("text, error, words", [
+    ("islamic:100000000000000000-01-01", "ParameterError", "beyond what calendra converts"),
+    ("mayan:1000000000.0.0.0.0", "DateRangeError", "mayan-long-count converts day numbers"),
+    ("julian:100000000-01-01", "DateRangeError", "julian converts day numbers"),
+])
+def test_dates_beyond_the_day_range_are_refused_in_one_line(text, error, words):
+    # Common practice: a date whose day number would overflow integer arithmetic, or lies beyond the
+    # calendar's day range (+-3e9 days for an unbounded one), is an input error, not a silent wrap.
+    from calendra import errors
+    with pytest.raises(getattr(errors, error)) as info:
+        resolve_dates([parse_date(text)])
+    assert words in str(info.value) and text in str(info.value) and "\n" not in str(info.value)
+    from convertdate import julian                        # reference library: year 10**6 still converts
+    assert int(resolve_dates([parse_date("julian:1000000-01-01")]).jdn[0]) == int(julian.to_jd(1000000, 1, 1) + 0.5)
