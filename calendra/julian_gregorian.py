@@ -156,14 +156,6 @@ def _month_ok(y, m, d, is_leap):
     return ok
 
 
-def _julian_leap(y):
-    return (y & 3) == 0
-
-
-def _gregorian_leap(y):
-    return ((y & 3) == 0) & ((y % 100 != 0) | (y % 400 == 0))
-
-
 #: Days from March 1 to the first of month m (index m; months 0 and 13..15 give 0, for invalid input).
 _MARCH_DAYS = np.array([0] + [(153 * ((k + 9) % 12) + 2) // 5 for k in range(1, 13)] + [0] * 3, dtype=np.int32)
 
@@ -204,11 +196,11 @@ def _greg_to(y, m, d):
 
 
 def _greg_to_checked(y, m, d):
-    return _greg_to(y, m, d), _month_ok(y, m, d, _gregorian_leap)
+    return _greg_to(y, m, d), _month_ok(y, m, d, gregorian_is_leap)
 
 
 def _jul_to_checked(y, m, d):
-    return _jul_to(y, m, d), _month_ok(y, m, d, _julian_leap)
+    return _jul_to(y, m, d), _month_ok(y, m, d, julian_is_leap)
 
 
 def gregorian_to_jdn_checked(year, month, day):

@@ -372,6 +372,20 @@ def _base_calendar(spec, lookup, fail, key):
 
 
 # --------------------------------------------------------- year counting
+def _earlier(values, starts):
+    """True where the fields ``values`` (month, [leap,] day) come before ``starts`` in the year.
+
+    Compared field by field (lexicographic order), which is the order of the days of a year; a
+    leap month follows the month it repeats.  ``starts`` may be numbers or arrays.
+    """
+    lt = eq = None
+    for value, start in zip(values, starts):
+        v = as_int_array(value)
+        lt = (v < start) if lt is None else lt | (eq & (v < start))
+        eq = (v == start) if eq is None else eq & (v == start)
+    return lt
+
+
 class _Count:
     """Regnal or era years over a base calendar: year n begins at the year start of base year K + n.
 
@@ -385,12 +399,7 @@ class _Count:
         self.inner = tuple(int(v) for v in inner)
 
     def before(self, *inner):
-        lt = eq = None
-        for value, start in zip(inner, self.inner):
-            v = as_int_array(value)
-            lt = (v < start) if lt is None else lt | (eq & (v < start))
-            eq = (v == start) if eq is None else eq & (v == start)
-        return lt
+        return _earlier(inner, self.inner)
 
     def base_year(self, year, *inner):
         return self.offset + as_int_array(year) + self.before(*inner)
@@ -983,13 +992,8 @@ class DynastyCalendar(_FileCalendar):
         offset = np.array([r.count.offset if r.resolved else 0 for r in reigns], dtype=np.int64)[idx]
         first = self._first_inner()
         starts = np.array([r.count.inner if r.resolved else first for r in reigns], dtype=np.int64)[idx]
-        # Days before the reign's year start (in the order of the fields after the year) belong to the
-        # year before.
-        before = eq = None
-        for col, value in enumerate(inner):
-            start = starts[..., col]
-            before = (value < start) if before is None else before | (eq & (value < start))
-            eq = (value == start) if eq is None else eq & (value == start)
+        # Days before the reign's year start belong to the year before.
+        before = _earlier(inner, [starts[..., col] for col in range(starts.shape[-1])])
         year = by - before - offset
         return (idx + 1, year, *inner)
 
