@@ -2,15 +2,17 @@
 
 Each calendar converts 1,000,000 random day numbers to fields (``from_jdn``)
 and the fields back (``to_jdn``, which also validates them), one array call
-each, best of ``--repeat``.  convertdate converts the same kind of dates one
-at a time in a plain Python loop (its API is scalar) over up to ``--loop``
-dates, cut to about ``--budget`` seconds for its slow astronomical
-calendars, and its rate is scaled from there.  Everything runs in one
+each, best of ``--repeat`` (on a shared machine the best of many short runs
+is the stable figure).  convertdate converts the same kind of dates one at a
+time in a plain Python loop (its API is scalar) over up to ``--loop`` dates,
+cut to about ``--budget`` seconds for its slow astronomical calendars, best
+of ``--peer-repeat``, and its rate is scaled from there.  Everything runs in one
 process, single-threaded; a markdown table goes to standard output.
 
 Usage::
 
-    python bench/bench_arithmetic.py [--n 1000000] [--loop 20000] [--budget 2] [--repeat 5] [--only CAL ...]
+    python bench/bench_arithmetic.py [--n 1000000] [--loop 20000] [--budget 2]
+                                     [--repeat 15] [--peer-repeat 5] [--only CAL ...]
 
 Day numbers are drawn from -3000..+3000 (Gregorian years), or from the part
 of it that convertdate accepts for that calendar (column "span").
@@ -121,13 +123,14 @@ def main():
     ap.add_argument("--n", type=int, default=1_000_000, help="day numbers per calendar (vectorized)")
     ap.add_argument("--loop", type=int, default=20_000, help="dates per convertdate loop")
     ap.add_argument("--budget", type=float, default=2.0, help="seconds at most per convertdate loop")
-    ap.add_argument("--repeat", type=int, default=5, help="timings per measurement (the best is kept)")
+    ap.add_argument("--repeat", type=int, default=15, help="timings per calendra measurement (the best is kept)")
+    ap.add_argument("--peer-repeat", type=int, default=5, help="timings per convertdate loop (the best is kept)")
     ap.add_argument("--only", nargs="*", default=None, metavar="CAL", help="measure these calendars only")
     args = ap.parse_args()
     rng = np.random.default_rng(7)
     print(f"Arithmetic calendars: {args.n:,} day numbers per calendar, both directions (calendra: one "
           f"array call, best of {args.repeat}; convertdate {convertdate.__version__}: scalar loop over up to "
-          f"{args.loop:,} dates or {args.budget:g} s, best of {max(1, args.repeat // 2)}, scaled).  "
+          f"{args.loop:,} dates or {args.budget:g} s, best of {args.peer_repeat}, scaled).  "
           f"Rates in dates per second; x = calendra / convertdate (round trip: from + to).  "
           f"Python {platform.python_version()}, numpy {np.__version__}, {platform.machine()}.\n")
     print("| calendar | span (JDN) | calendra from_jdn | calendra to_jdn | convertdate from_jd | "
@@ -150,9 +153,9 @@ def main():
         cd_from = cd_to = None
         if peer_from is not None:
             sample = [float(j) - 0.5 for j in jdn[: args.loop]]
-            cd_from, out = loop_rate(peer_from, sample, args.budget, max(1, args.repeat // 2))
+            cd_from, out = loop_rate(peer_from, sample, args.budget, args.peer_repeat)
             if peer_to is not None:
-                cd_to, _ = loop_rate(peer_to, [tuple(o) for o in out], args.budget, max(1, args.repeat // 2))
+                cd_to, _ = loop_rate(peer_to, [tuple(o) for o in out], args.budget, args.peer_repeat)
         both = None if ours_to is None else 1 / (1 / ours_from + 1 / ours_to)
         cd_both = None if cd_to is None else 1 / (1 / cd_from + 1 / cd_to)
         print(f"| {cal.name} | {lo}..{hi} | {rate(ours_from)} | {rate(ours_to)} | {rate(cd_from)} | "

@@ -95,7 +95,7 @@ class BlockwiseMixin:
     (day numbers less :attr:`_jdn_offset`, and the mask of dates that exist)
     and ``_from_jdn``.  It may also implement a faster block writer
     ``_to_jdn_block(out, *fields) -> bool`` that writes the day numbers of
-    one block into ``out`` and returns whether *every* date of the block
+    one block (:data:`BLOCK` dates) into ``out`` and returns whether *every* date of the block
     exists (typically from min/max reductions, which cost a fraction of an
     element-wise mask); the exact mask is then computed only to report an
     invalid date.
@@ -378,9 +378,11 @@ class EpagomenalCalendar(ArithmeticCalendar):
         # element-wise check only where it reaches 365 (a sixth epagomenal day or beyond).
         if day.size == 0:
             return True
-        if day.min() < 1 or umax(day) > 30 or month.min() < 1 or umax(month) > 13:
+        if month.min() < 1 or umax(month) > 13:
             return False
         np.multiply(month, _I30, out=out)
+        if day.min() < 1 or umax(day) > 30:
+            return False
         out += day                                        # day of the year + 31
         if int(out.max()) >= 365 + 31:
             late = np.flatnonzero(out >= 365 + 31)

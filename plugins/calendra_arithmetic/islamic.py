@@ -153,16 +153,19 @@ class IslamicTabularCalendar(OptionsMixin, ArithmeticCalendar):
     def _to_jdn_block(self, out, year, month, day):
         # Months 1..12 and days 1..30 checked by four reductions; only days 30 need the month
         # length (29 or 30), looked up for those few dates alone.
+        # (Each check runs just before its field is used, while the field is in cache.)
         if day.size == 0:
             return True
-        if month.min() < 1 or umax(month) > 12 or day.min() < 1 or umax(day) > 30:
-            return False
         index = np.floor_divide(year, _I30)               # 30-year cycles ...
         np.multiply(index, _ICYCLE, out=out)
+        if month.min() < 1 or umax(month) > 12:
+            return False
         index -= month
         index *= _IM30
         index += year                                     # ... turned into 30 month + (y mod 30)
         out += self._day0_by_month.take(index, mode="clip")     # clip: no crash on absurd years
+        if day.min() < 1 or umax(day) > 30:
+            return False
         out += day
         thirtieth = np.flatnonzero(day == 30)
         return bool(np.all(self._days_by_month.take(index[thirtieth], mode="clip") == 30))

@@ -141,14 +141,16 @@ class MayanLongCountCalendar(_Correlated):
         return days, ok
 
     def _to_jdn_block(self, out, baktun, katun, tun, uinal, kin):
-        # The radix checks as four reductions (instead of four element-wise masks), then the
-        # mixed-radix sum written in place into ``out``.
-        if not (umax(katun) < 20 and umax(tun) < 20 and umax(uinal) < 18 and umax(kin) < 20):
-            return False
+        # The mixed-radix sum written in place into ``out``; each digit's range is checked by one
+        # reduction just before it is added, while the digit is still in cache.
         np.multiply(baktun, _I20, out=out)
-        for value, radix in ((katun, _I20), (tun, _I18), (uinal, _I20)):
+        for value, limit, radix in ((katun, 20, _I20), (tun, 20, _I18), (uinal, 18, _I20)):
+            if umax(value) >= limit:
+                return False
             np.add(out, value, out=out)
             np.multiply(out, radix, out=out)
+        if umax(kin) >= 20:
+            return False
         np.add(out, kin, out=out)
         np.add(out, np.int64(self.epoch_jdn), out=out)
         return True
