@@ -274,13 +274,11 @@ def resolve_dates(specs, host=None, deltat=None, site=None, reform=None) -> Reso
         except InvalidDateError as exc:
             bad = idx[np.atleast_1d(exc.mask)][0] if exc.mask is not None and np.ndim(exc.mask) else idx[0]
             raise InvalidDateError(f"{specs[bad].text!r}: {exc}", exc.calendar, exc.mask) from None
-        lo, hi = cal.valid_jdn                  # +-3e9 days (about 8 million years) for an unbounded one
-        outside = (np.asarray(days) < lo) | (np.asarray(days) > hi)
-        if np.any(outside):
-            k = int(np.flatnonzero(np.atleast_1d(outside))[0])
-            raise DateRangeError(f"{specs[idx[k]].text!r}: {cal.label} converts day numbers {lo}..{hi} (JD "
-                                 f"{lo - 0.5}..{hi + 0.5}); this date is day {int(np.atleast_1d(days)[k])}",
-                                 lo - 0.5, hi + 0.5, outside)
+        try:
+            cal.check_range(days)               # +-3e9 days (about 8 million years) for an unbounded one
+        except DateRangeError as exc:
+            bad = idx[np.atleast_1d(exc.mask)][0]
+            raise DateRangeError(f"{specs[bad].text!r}: {exc}", exc.jd_min, exc.jd_max, exc.mask) from None
         jdn[idx] = days
         frac = np.array([specs[i].fraction or 0.0 for i in idx])
         jd_local[idx] = days - 0.5 + frac

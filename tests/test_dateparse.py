@@ -92,8 +92,8 @@ def test_local_time_needs_a_site(host):
 
 @pytest.mark.parametrize("text, error, words", [
     ("islamic:100000000000000000-01-01", "ParameterError", "beyond what calendra converts"),
-    ("mayan:1000000000.0.0.0.0", "DateRangeError", "mayan-long-count converts day numbers"),
-    ("julian:100000000-01-01", "DateRangeError", "julian converts day numbers"),
+    ("mayan:1000000000.0.0.0.0", "DateRangeError", "mayan-long-count is defined for day numbers"),
+    ("julian:100000000-01-01", "DateRangeError", "julian is defined for day numbers"),
 ])
 def test_dates_beyond_the_day_range_are_refused_in_one_line(text, error, words):
     # Common practice: a date whose day number would overflow integer arithmetic, or lies beyond the

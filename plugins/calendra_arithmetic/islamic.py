@@ -32,7 +32,7 @@ import numpy as np
 
 from calendra.daylib import RD_EPOCH_JDN
 
-from .base import (MONTH_COLUMNS, ArithmeticCalendar, OptionsMixin, below, floor_divmod, month_table,
+from .base import (_I30, MONTH_COLUMNS, ArithmeticCalendar, OptionsMixin, below, floor_divmod, month_table,
                    parse_choice_option, umax)
 
 #: Leap years of the 30-year cycle (years 1..30 of the cycle), by scheme name.
@@ -56,7 +56,7 @@ EPOCHS = {"civil": 227015 + RD_EPOCH_JDN, "astronomical": 227014 + RD_EPOCH_JDN}
 _EPOCH_NAMES = {"civil": "civil", "friday": "civil", "astronomical": "astronomical", "thursday": "astronomical"}
 
 CYCLE_DAYS = 30 * 354 + 11
-_I30, _IM30, _ICYCLE = np.int64(30), np.int64(-30), np.int64(CYCLE_DAYS)
+_IM30, _ICYCLE = np.int64(-30), np.int64(CYCLE_DAYS)
 #: Days from 1 Muharram to the first of each month (ceil(29.5 (m - 1))).
 MONTH_STARTS = np.array([(59 * k + 1) // 2 for k in range(12)], dtype=np.int64)
 #: Month tables: months alternate 30 and 29 days; Dhu al-Hijja has 30 in leap years.

@@ -14,6 +14,7 @@ import html
 
 from calendra.output import render_csv, render_json, render_table
 from calendra.provenance import footer_lines
+from calendra.registry import parse_spec
 
 EVENT_COLUMNS = ["rank", "observation", "kind", "date_ut", "time_ut", "local", "stated_date", "residuals", "margin"]
 
@@ -47,7 +48,7 @@ def event_rows(solutions) -> list:
                          "local": ev.get("local", ""), "stated_date": ev.get("stated_date", ""),
                          "stated_calendar": ev.get("stated_calendar", ""),
                          # the calendar's name (its epoch options are in the solution's header)
-                         "stated": (f"{ev['stated_calendar'].split('[')[0]}: {ev.get('stated_date', '')}"
+                         "stated": (f"{parse_spec(ev['stated_calendar'])[0]}: {ev.get('stated_date', '')}"
                                     if ev.get("stated_calendar") else ev.get("stated_date", "")),
                          "residuals": _resid_text(ev) if ev.get("holds") else "fails",
                          "margin": _margin_text(ev), "jd_tt": ev.get("jd_tt"), "jd_ut": ev.get("jd_ut"),
